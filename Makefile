@@ -1,0 +1,32 @@
+# Two set-up commands (see README): `make demo` and `make test`.
+PYTHON ?= python3
+VENV ?= .venv
+PY := $(VENV)/bin/python
+STAMP := $(VENV)/.installed
+
+.PHONY: demo test lint bench clean
+
+$(STAMP): pyproject.toml
+	$(PYTHON) -m venv $(VENV)
+	$(PY) -m pip install --quiet --upgrade "pip>=25.1"
+	$(PY) -m pip install --quiet -e . --group dev
+	touch $(STAMP)
+
+demo: $(STAMP)
+	$(VENV)/bin/fluxshadow stack fixtures/mini4
+
+test: $(STAMP)
+	$(PY) -m pytest -q
+	$(VENV)/bin/ruff check src tests benchmarks
+	$(VENV)/bin/mypy
+
+lint: $(STAMP)
+	$(VENV)/bin/ruff check src tests benchmarks
+	$(VENV)/bin/ruff format --check src tests benchmarks
+	$(VENV)/bin/mypy
+
+bench: $(STAMP)
+	$(PY) benchmarks/run_all.py
+
+clean:
+	rm -rf $(VENV) build *.egg-info

@@ -1,0 +1,1 @@
+"""Board model: layered copper, spatial index, magnetics, registration."""

@@ -1,0 +1,1 @@
+"""Rules that turn a board and physics into findings."""

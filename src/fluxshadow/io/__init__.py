@@ -1,0 +1,1 @@
+"""Readers: files to plain records. The only code that reads files."""

@@ -1,0 +1,1 @@
+"""Physics kernels: pure numpy/scipy, SI units, no board types."""
