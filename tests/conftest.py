@@ -1,0 +1,49 @@
+"""Shared test fixtures.
+
+The real-board corpus lives outside the repository, in ``../shared/realboards`` beside the
+checkout (read-only, never copied in). Tests that need it use the ``realboards`` fixture and
+are skipped cleanly when it is absent.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable
+from pathlib import Path
+
+import pytest
+
+REPO = Path(__file__).resolve().parents[1]
+SHARED = REPO.parent / "shared"
+REALBOARDS = SHARED / "realboards"
+REALBOARDS_ODB = SHARED / "realboards-odb"
+
+BOARD_NAMES = (
+    "bq25798-mppt-v2.1",
+    "cheap-focer-2",
+    "huvud-tiny2",
+    "incunest-motherboard",
+    "limesdr-xtrx-1v1",
+    "pycubed-mainboard-v05",
+    "thunderscope-rev5.3",
+)
+
+
+@pytest.fixture(scope="session")
+def realboards() -> Path:
+    """Folder of the shared real fabrication packages; skips the test when absent."""
+    if not REALBOARDS.is_dir():
+        pytest.skip("../shared/realboards is not present")
+    return REALBOARDS
+
+
+@pytest.fixture(scope="session")
+def realboard() -> Callable[[str], Path]:
+    """Factory: ``realboard("cheap-focer-2")`` gives that board's folder or skips the test."""
+
+    def get(name: str) -> Path:
+        path = REALBOARDS / name
+        if not path.is_dir():
+            pytest.skip(f"../shared/realboards/{name} is not present")
+        return path
+
+    return get
