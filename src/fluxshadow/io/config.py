@@ -140,6 +140,7 @@ class PartConfig:
     """One ``[[part]]``: what a designator is and, optionally, its physical model (mm).
 
     ``kind`` ``None`` keeps the tool's own identification; ``"exclude"`` drops the part.
+    ``body_mm`` is ``(length along the part's local X, width)`` before its rotation.
     """
 
     ref: str
