@@ -40,13 +40,16 @@ def mini4() -> SynthBoard:
     - L2 (2.2 uH, 4 x 4 mm body) at (28, 15); L2's inner layer 2 has a 3 x 3 mm void under it;
     - FB1 (a ferrite bead) and L3 (47 nH, an RF coil) must be excluded;
     - a signal trace on layer 3 runs under L1, one on layer 4 under L2;
-    - vias at (20, 5) and (20, 25) with antipads in the planes.
+    - seven signal vias with antipads in the planes and one ground via.
     """
     w, h = 40.0, 30.0
-    vias = ((20.0, 5.0), (20.0, 25.0), (5.0, 5.0))
+    signal_vias = ((20.0, 5.0), (20.0, 25.0), *((x, 27.0) for x in (8.0, 12.0, 24.0, 28.0, 32.0)))
+    vias = (*signal_vias, (5.0, 5.0))
     plane = Region(_rect(0.5, 0.5, w - 0.5, h - 0.5), net="GND")
-    antipads = tuple(Flash(x, y, _ANTIPAD, dark=False) for x, y in vias[:2])
-    via_pads = tuple(Flash(x, y, _VIA, net="GND" if (x, y) == vias[2] else "VSW") for x, y in vias)
+    antipads = tuple(Flash(x, y, _ANTIPAD, dark=False) for x, y in signal_vias)
+    via_pads = tuple(
+        Flash(x, y, _VIA, net="GND" if (x, y) == (5.0, 5.0) else "SIG") for x, y in vias
+    )
     top = CopperLayer(
         (
             Region(_rect(14.0, 22.0, 24.0, 28.0), net="VIN_A"),

@@ -1,0 +1,5 @@
+"""``python -m fluxshadow``."""
+
+from fluxshadow.cli.app import main
+
+main()

@@ -1,0 +1,492 @@
+"""Read a fabrication package into a :class:`~fluxshadow.board.model.Board`.
+
+The order of work: classify files, identify and order the copper layers, read copper,
+profile, paste, drill, placement, BOM and job files, detect unmarked negative planes,
+resolve the stack-up, register the placement frame to the artwork, identify the magnetics
+and move them into the artwork frame. Every file is accounted for in ``Board.files``;
+whatever had to be assumed is in ``Board.assumptions``.
+"""
+
+from __future__ import annotations
+
+import hashlib
+import math
+import os
+from collections.abc import Callable, Sequence
+from dataclasses import replace
+from pathlib import Path
+
+import numpy as np
+import numpy.typing as npt
+import shapely
+from scipy.spatial import cKDTree
+
+from fluxshadow.board.copper import LayerArtwork
+from fluxshadow.board.magnetics import Magnetic, PartOverride, identify_magnetics
+from fluxshadow.board.model import Board, FileUse, Layer
+from fluxshadow.board.outline import BoardOutline, outline_from_artwork
+from fluxshadow.board.pads import pad_centres
+from fluxshadow.board.polarity import flash_sizes_mm, looks_negative
+from fluxshadow.board.registration import FrameFit, FrameOverride, apply_fit, fit_frame, invert_fit
+from fluxshadow.board.stackup import resolve_stackup
+from fluxshadow.errors import ConfigError, FluxshadowError, InputError, Notice
+from fluxshadow.io.config import Config, find_config, load_config
+from fluxshadow.io.excellon import read_excellon
+from fluxshadow.io.gerber import read_gerber, read_gerber_header
+from fluxshadow.io.identify import LayerIdentity, identify_layer, order_copper_layers
+from fluxshadow.io.jobfile import read_job_file
+from fluxshadow.io.package import DEFAULT_LIMITS, Limits, open_package
+from fluxshadow.io.placement import join_bom, read_bom, read_placement
+from fluxshadow.io.records import (
+    ArtworkRecord,
+    BomRow,
+    DrillRecord,
+    FileKind,
+    JobRecord,
+    PackageFiles,
+    PlacementRow,
+)
+
+__all__ = ["load_package"]
+
+Progress = Callable[[str], None]
+
+
+def _sha256(path: Path) -> str:
+    h = hashlib.sha256()
+    with path.open("rb") as f:
+        for chunk in iter(lambda: f.read(1 << 20), b""):
+            h.update(chunk)
+    return h.hexdigest()
+
+
+def _resolve_config(config: Config | str | os.PathLike[str] | None, root: Path) -> Config:
+    if isinstance(config, Config):
+        return config
+    if config is not None:
+        return load_config(Path(config))
+    found = find_config(root)
+    return load_config(found) if found is not None else Config()
+
+
+def _pick_placement(
+    tables: list[tuple[str, list[PlacementRow]]],
+) -> tuple[list[PlacementRow], list[str], list[Notice]]:
+    """Choose the placement rows when a package carries several placement files.
+
+    Files are ranked by how much they say (values, packages, rows); each designator is
+    taken from the best file that has it, so complementary top/bottom files combine and
+    a bare centroid file only fills in parts the richer files lack.
+    """
+
+    def rank(item: tuple[str, list[PlacementRow]]) -> tuple[int, int, int, str]:
+        name, rows = item
+        with_value = sum(1 for r in rows if r.value)
+        with_package = sum(1 for r in rows if r.package)
+        return (-with_value, -with_package, -len(rows), name)
+
+    chosen: list[PlacementRow] = []
+    seen: set[str] = set()
+    used: list[str] = []
+    notices: list[Notice] = []
+    for name, rows in sorted(tables, key=rank):
+        new = [r for r in rows if r.ref not in seen]
+        if new:
+            used.append(name)
+            chosen.extend(new)
+            seen.update(r.ref for r in new)
+        elif rows:
+            notices.append(
+                Notice(
+                    file=name,
+                    line=None,
+                    message="placement rows already given by a richer file; not used",
+                )
+            )
+    return chosen, used, notices
+
+
+def _extent(outline: BoardOutline | None, records: Sequence[ArtworkRecord]) -> shapely.Polygon:
+    if outline is not None:
+        return shapely.Polygon(outline.board.exterior)
+    boxes = []
+    for rec in records:
+        if rec.n_objects and not rec.negative_image:
+            v = np.vstack([rec.obj_xy, rec.vertices]) if len(rec.vertices) else rec.obj_xy
+            boxes.append((*v.min(axis=0), *v.max(axis=0)))
+    if not boxes:
+        return shapely.Polygon()
+    b = np.array(boxes)
+    return shapely.box(b[:, 0].min(), b[:, 1].min(), b[:, 2].max(), b[:, 3].max())
+
+
+def _holes(drills: Sequence[DrillRecord]) -> npt.NDArray[np.float64]:
+    arrays = [d.hole_xy for d in drills if len(d.hole_xy)]
+    return np.vstack(arrays) if arrays else np.empty((0, 2))
+
+
+def _assign_pads(
+    centres: npt.NDArray[np.float64], pads: npt.NDArray[np.float64], radius_mm: float = 8.0
+) -> list[npt.NDArray[np.float64]]:
+    """Give each pad to the nearest part centre within ``radius_mm`` (artwork frame)."""
+    out = [np.empty((0, 2)) for _ in range(len(centres))]
+    if not len(centres) or not len(pads):
+        return out
+    d, j = cKDTree(centres).query(pads, distance_upper_bound=radius_mm)
+    ok = np.isfinite(d)
+    for k in np.unique(j[ok]):
+        out[int(k)] = pads[ok & (j == k)]
+    return out
+
+
+def _overrides(cfg: Config) -> list[PartOverride]:
+    out = []
+    for p in cfg.parts:
+        if p.kind is not None or p.body_mm is not None or p.height_mm is not None:
+            out.append(
+                PartOverride(ref=p.ref, kind=p.kind, body_mm=p.body_mm, height_mm=p.height_mm)
+            )
+    return out
+
+
+def _frame_override(cfg: Config) -> FrameOverride | None:
+    pc = cfg.placement
+    if pc.rotation_deg not in (None, 0.0):
+        msg = (
+            f"{cfg.source}: placement.rotation_deg must be 0 (only translation and bottom "
+            f"mirroring are supported); got {pc.rotation_deg!r}"
+        )
+        raise ConfigError(msg)
+    given = (pc.offset_x_mm, pc.offset_y_mm, pc.mirror_bottom, pc.bottom_mirror_x_mm)
+    if all(v is None for v in given):
+        return None
+    return FrameOverride(
+        dx_mm=pc.offset_x_mm or 0.0,
+        dy_mm=pc.offset_y_mm or 0.0,
+        bottom_mirror=bool(pc.mirror_bottom),
+        bottom_mirror_c_mm=pc.bottom_mirror_x_mm,
+    )
+
+
+def _to_artwork(m: Magnetic, fit: FrameFit) -> Magnetic:
+    side = m.side
+    x, y = apply_fit(fit, [m.x_mm], [m.y_mm], side)
+    ox, oy = apply_fit(fit, m.outline[:, 0], m.outline[:, 1], side)
+    rot = m.rotation_deg
+    if side == "bottom" and fit.bottom_mirror:
+        rot = (180.0 - rot) % 360.0
+    return replace(
+        m,
+        x_mm=float(x[0]),
+        y_mm=float(y[0]),
+        rotation_deg=rot,
+        outline=np.column_stack([ox, oy]),
+    )
+
+
+def load_package(
+    path: str | os.PathLike[str],
+    *,
+    config: Config | str | os.PathLike[str] | None = None,
+    limits: Limits = DEFAULT_LIMITS,
+    progress: Progress | None = None,
+) -> Board:
+    """Read a fabrication package (folder, .zip or .tgz) into a layered board model.
+
+    Parameters
+    ----------
+    path : path
+        The package.
+    config : Config or path, optional
+        A parsed configuration or the path of a ``fluxshadow.toml``. Default: a
+        ``fluxshadow.toml`` found beside or inside the package, else none.
+    limits : Limits
+        Safety limits on archives and file sizes.
+    progress : callable, optional
+        Called with a short message before each stage (for a progress display).
+
+    Returns
+    -------
+    Board
+        Layers top to bottom, magnetics in the artwork frame, frame fit, stack-up.
+
+    Raises
+    ------
+    InputError
+        The package has no copper layer, or a file is malformed beyond recovery.
+    ConfigError
+        The configuration is invalid.
+    """
+    with open_package(path, limits=limits) as pkg:
+        try:
+            return _load(pkg, config, progress)
+        except FluxshadowError as exc:
+            if Path(pkg.root) == Path(pkg.display_root):
+                raise
+            # Files of an archive live in a temporary folder: name the archive instead.
+            text = str(exc).replace(str(Path(pkg.root)), pkg.display_root)
+            if isinstance(exc, ConfigError):
+                raise ConfigError(text) from exc
+            raise InputError(text) from exc
+
+
+def _load(
+    pkg: PackageFiles, config: Config | str | os.PathLike[str] | None, progress: Progress | None
+) -> Board:
+    say = progress or (lambda _msg: None)
+    root = Path(pkg.root)
+    cfg = _resolve_config(config, root)
+    notices: list[Notice] = list(pkg.notices)
+    assumptions: list[str] = []
+    uses: dict[str, str] = {}
+    hashes = {rel: _sha256(root / rel) for rel in sorted(pkg.files)}
+    by_kind: dict[FileKind, list[str]] = {}
+    for rel, kind in sorted(pkg.files.items()):
+        by_kind.setdefault(kind, []).append(rel)
+    for rel in pkg.unclassified:
+        uses[rel] = "not classified (not read)"
+
+    # --- layer identification
+    say("identifying layers")
+    idents: list[LayerIdentity] = []
+    for rel in by_kind.get(FileKind.GERBER, []):
+        attrs, comments, _units = read_gerber_header(root / rel)
+        ident = identify_layer(rel, file_attributes=attrs, comments=comments, config_map=cfg.layers)
+        idents.append(ident)
+        notices.extend(ident.notices)
+    copper_ids = order_copper_layers(idents)
+    for ident in copper_ids:
+        notices.extend(n for n in ident.notices if n not in notices)
+    if not copper_ids:
+        msg = (
+            "package must contain at least one copper Gerber layer; found none among "
+            f"{len(by_kind.get(FileKind.GERBER, []))} Gerber files"
+        )
+        raise InputError(msg, file=pkg.display_root)
+    copper_files = {c.file for c in copper_ids}
+    for ident in idents:
+        if ident.file not in copper_files:
+            what = ident.function if ident.function != "copper" else "copper (left out)"
+            uses[ident.file] = f"gerber: {what}" + (f" {ident.side}" if ident.side else "")
+
+    # --- read artwork
+    records: list[ArtworkRecord] = []
+    for ident in copper_ids:
+        say(f"reading {ident.file}")
+        rec = read_gerber(root / ident.file)
+        records.append(rec)
+        notices.extend(rec.notices)
+    outline: BoardOutline | None = None
+    paste: dict[str, list[ArtworkRecord]] = {"top": [], "bottom": []}
+    for ident in idents:
+        if ident.function == "outline" and outline is None:
+            rec = read_gerber(root / ident.file)
+            notices.extend(rec.notices)
+            outline = outline_from_artwork(rec)
+            uses[ident.file] = (
+                "gerber: board outline" if outline else "gerber: outline (no closed shape)"
+            )
+        elif ident.function == "paste" and ident.side in ("top", "bottom"):
+            rec = read_gerber(root / ident.file)
+            paste[ident.side].append(rec)
+            uses[ident.file] = f"gerber: paste {ident.side} (frame registration)"
+    if outline is None:
+        assumptions.append(
+            "board outline: no profile/outline layer gave a closed shape; the extent of "
+            'the copper is used (name the outline file in [layers] as "outline")'
+        )
+
+    # --- drill, job, placement, BOM
+    drills: list[DrillRecord] = []
+    for rel in by_kind.get(FileKind.EXCELLON, []):
+        say(f"reading {rel}")
+        d = read_excellon(root / rel)
+        drills.append(d)
+        notices.extend(d.notices)
+        span = f" layers {d.span[0]}-{d.span[1]}" if d.span else ""
+        uses[rel] = (
+            f"drill: {len(d.hole_xy)} holes, {len(d.slot_xy)} slots{span} "
+            f"(plating from {d.plating_from})"
+        )
+    job: JobRecord | None = None
+    for rel in by_kind.get(FileKind.JOB, []):
+        if job is None:
+            job = read_job_file(root / rel)
+            uses[rel] = "job file: stack-up"
+        else:
+            uses[rel] = "job file (a second one; not used)"
+    tables: list[tuple[str, list[PlacementRow]]] = []
+    for rel in by_kind.get(FileKind.PLACEMENT, []):
+        rows, pn = read_placement(root / rel)
+        notices.extend(pn)
+        tables.append((rel, rows))
+    placement, used_tables, pn2 = _pick_placement(tables)
+    notices.extend(pn2)
+    for rel, rows in tables:
+        uses[rel] = (
+            f"placement: {len(rows)} rows"
+            if rel in used_tables
+            else f"placement: {len(rows)} rows (not needed)"
+        )
+    bom_rows: list[BomRow] = []
+    for rel in by_kind.get(FileKind.BOM, []):
+        rows_b, bn = read_bom(root / rel)
+        notices.extend(bn)
+        bom_rows.extend(rows_b)
+        uses[rel] = f"BOM: {len(rows_b)} designators"
+    if bom_rows:
+        placement = join_bom(placement, bom_rows, notices=notices)
+    if not placement:
+        assumptions.append(
+            "placement: no placement file was found, so no magnetics can be located "
+            "(add the placement/centroid file to the package)"
+        )
+    for rel in by_kind.get(FileKind.CONFIG, []):
+        uses[rel] = "configuration"
+    for kind, rels in by_kind.items():
+        for rel in rels:
+            uses.setdefault(rel, f"{kind.value}: not used")
+
+    # --- negative planes without a marker
+    extent = _extent(outline, records)
+    hole_xy = _holes(drills)
+    outer = [records[0], records[-1]] if len(records) > 1 else records[:1]
+    pad_xy = np.vstack([r.obj_xy[r.obj_kind == 0] for r in outer])
+    pad_size = np.concatenate([flash_sizes_mm(r) for r in outer])
+    polarity: list[tuple[str, str]] = []
+    for ident, rec in zip(copper_ids, records, strict=True):
+        if rec.negative_image and ident.polarity == "positive" and ident.polarity_from != "config":
+            polarity.append(("negative", "image-polarity"))
+        elif ident.polarity == "negative" or rec.negative_image:
+            polarity.append(("negative", ident.polarity_from))
+        elif ident.polarity_from in ("default",) and ident.side == "inner":
+            ev = looks_negative(
+                rec,
+                hole_xy=hole_xy,
+                outer_pad_xy=pad_xy,
+                outer_pad_size_mm=pad_size,
+                extent_area_mm2=float(extent.area),
+            )
+            if ev.negative:
+                polarity.append(("negative", "geometry"))
+                assumptions.append(
+                    f"layer {ident.file}: read as a negative plane image because it looks "
+                    f"like one ({ev.describe()}); if wrong, state it in [layers] as "
+                    f'"{Path(ident.file).name}" = "copper:{ident.index}"'
+                )
+            else:
+                polarity.append(("positive", ident.polarity_from))
+        else:
+            polarity.append(("positive", ident.polarity_from))
+
+    artworks = tuple(
+        LayerArtwork(rec, negative=(pol == "negative"), plane_extent=extent)
+        for rec, (pol, _src) in zip(records, polarity, strict=True)
+    )
+
+    # --- stack-up
+    stackup, stack_assumptions = resolve_stackup(len(copper_ids), job=job, config=cfg)
+    assumptions.extend(stack_assumptions)
+
+    layers = tuple(
+        Layer(
+            name=f"L{ident.index}",
+            index=int(ident.index or i + 1),
+            source=ident.file,
+            identified_by=ident.identified_by,
+            detail=ident.detail,
+            side=ident.side
+            or ("top" if i == 0 else "bottom" if i == len(copper_ids) - 1 else "inner"),
+            polarity=pol,  # type: ignore[arg-type]
+            polarity_from=src,
+            z_top_mm=stackup.z_top_mm[i],
+            thickness_mm=stackup.thickness_mm[i],
+        )
+        for i, (ident, (pol, src)) in enumerate(zip(copper_ids, polarity, strict=True))
+    )
+    for lay in layers:
+        uses[lay.source] = f"copper {lay.name} ({lay.side}, {lay.polarity})"
+        if lay.identified_by in ("extension", "file-name"):
+            assumptions.append(
+                f"layer identity: {lay.source} taken as {lay.name} from its "
+                f"{lay.identified_by.replace('-', ' ')} only; confirm it or state it in [layers]"
+            )
+
+    # --- registration
+    say("registering placement to artwork")
+    pads: dict[str, npt.NDArray[np.float64]] = {}
+    for side, recs_side, copper_rec in (
+        ("top", paste["top"], records[0]),
+        ("bottom", paste["bottom"], records[-1] if len(records) > 1 else None),
+    ):
+        source = recs_side or ([copper_rec] if copper_rec is not None else [])
+        arrays = [pad_centres(r) for r in source]
+        pads[side] = np.vstack(arrays) if arrays else np.empty((0, 2))
+    top_rows = [r for r in placement if r.side == "top"]
+    bot_rows = [r for r in placement if r.side == "bottom"]
+    fit = fit_frame(
+        np.array([(r.x_mm, r.y_mm) for r in top_rows]).reshape(-1, 2),
+        np.array([(r.x_mm, r.y_mm) for r in bot_rows]).reshape(-1, 2),
+        pads["top"],
+        pads["bottom"],
+        override=_frame_override(cfg),
+    )
+    notices.extend(fit.notices)
+    if (
+        placement
+        and fit.method != "config"
+        and (fit.total == 0 or fit.score < 0.5 or not math.isfinite(fit.residual_mm))
+    ):
+        assumptions.append(
+            f"placement frame: the fit matched {fit.matched} of {fit.total} parts to pads; "
+            "state the transform in [placement] (offset_x_mm, offset_y_mm, mirror_bottom)"
+        )
+
+    # --- magnetics
+    say("identifying magnetics")
+    pads_by_ref: dict[str, npt.NDArray[np.float64]] = {}
+    for side in ("top", "bottom"):
+        rows = [r for r in placement if r.side == side]
+        if not rows:
+            continue
+        xs, ys = apply_fit(
+            fit,
+            [r.x_mm for r in rows],
+            [r.y_mm for r in rows],
+            side,  # type: ignore[arg-type]
+        )
+        assigned = _assign_pads(np.column_stack([xs, ys]), pads[side])
+        for r, p in zip(rows, assigned, strict=True):
+            if len(p):
+                px, py = invert_fit(fit, p[:, 0], p[:, 1], side)  # type: ignore[arg-type]
+                pads_by_ref[r.ref] = np.column_stack([px, py])
+    result = identify_magnetics(placement, pads_by_ref=pads_by_ref, overrides=_overrides(cfg))
+    notices.extend(n for n in result.notices if n not in notices)
+    magnetics = tuple(_to_artwork(m, fit) for m in result.magnetics)
+    for m in magnetics:
+        assumptions.extend(f"{m.ref}: {a}" for a in m.assumptions)
+
+    files = tuple(
+        FileUse(
+            file=rel,
+            kind=pkg.files.get(rel, FileKind.OTHER).value,
+            use=uses.get(rel, "not used"),
+        )
+        for rel in sorted(set(pkg.files) | set(pkg.unclassified))
+    )
+    return Board(
+        package=pkg.display_root,
+        layers=layers,
+        magnetics=magnetics,
+        excluded=result.excluded,
+        frame_fit=fit,
+        stackup=stackup,
+        outline=outline,
+        drills=tuple(drills),
+        placement=tuple(placement),
+        files=files,
+        notices=tuple(notices),
+        assumptions=tuple(assumptions),
+        artworks=artworks,
+        input_hashes=hashes,
+    )

@@ -1,0 +1,85 @@
+"""Board outline and cut-outs from a profile (outline) artwork.
+
+A profile layer draws the board edge as thin tracks (and sometimes regions). The centre
+lines are noded and polygonised; the largest face is the board, faces inside it that are
+bounded by drawn lines are cut-outs.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+import shapely
+from shapely.geometry.base import BaseGeometry
+
+from fluxshadow.io.records import REGION, TRACK, ArtworkRecord
+
+__all__ = ["BoardOutline", "outline_from_artwork"]
+
+_SNAP_MM = 0.01
+"""Drawn outline segments whose ends lie this close are joined (common practice: outline
+files written with rounded coordinates leave gaps of a few micrometres)."""
+
+
+@dataclass(frozen=True, kw_only=True)
+class BoardOutline:
+    """The board shape in the artwork frame (mm).
+
+    Attributes
+    ----------
+    board : shapely.Polygon
+        Outer edge with the cut-outs as holes.
+    cutouts : tuple of shapely.Polygon
+        Material removed inside the board (milled openings), each a polygon.
+    source : str
+        The profile file it came from.
+    """
+
+    board: BaseGeometry
+    cutouts: tuple[BaseGeometry, ...]
+    source: str
+
+
+def outline_from_artwork(record: ArtworkRecord) -> BoardOutline | None:
+    """Polygonise the centre lines of a profile artwork.
+
+    Parameters
+    ----------
+    record : ArtworkRecord
+        The profile/outline layer.
+
+    Returns
+    -------
+    BoardOutline or None
+        ``None`` when the lines enclose no area.
+    """
+    lines = []
+    rvs = record.ring_vertex_start
+    ors = record.obj_ring_start
+    for i in np.flatnonzero((record.obj_kind == TRACK) | (record.obj_kind == REGION)):
+        for r in range(int(ors[i]), int(ors[i + 1])):
+            pts = record.vertices[int(rvs[r]) : int(rvs[r + 1])]
+            if len(pts) >= 2:
+                lines.append(shapely.linestrings(pts))
+    if not lines:
+        return None
+    merged = shapely.union_all(shapely.set_precision(np.array(lines), _SNAP_MM))
+    faces = list(shapely.get_parts(shapely.polygonize([merged])))
+    faces = [f for f in faces if f.area > 0]
+    if not faces:
+        return None
+    faces.sort(key=lambda f: f.area, reverse=True)
+    outer = shapely.Polygon(faces[0].exterior)
+    inner = [
+        shapely.Polygon(f.exterior) for f in faces[1:] if outer.contains(f.representative_point())
+    ]
+    # Faces nested inside a cut-out (an island left in a hole) are not cut-outs themselves.
+    cutouts: list[BaseGeometry] = []
+    for f in sorted(inner, key=lambda g: g.area, reverse=True):
+        if not any(c.contains(f.representative_point()) for c in cutouts):
+            cutouts.append(f)
+    board = outer
+    if cutouts:
+        board = shapely.difference(outer, shapely.union_all(cutouts))
+    return BoardOutline(board=board, cutouts=tuple(cutouts), source=record.source)
