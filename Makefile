@@ -13,7 +13,7 @@ $(STAMP): pyproject.toml
 	touch $(STAMP)
 
 demo: $(STAMP)
-	$(VENV)/bin/fluxshadow stack fixtures/mini4
+	$(VENV)/bin/fluxshadow demo
 
 test: $(STAMP)
 	$(PY) -m pytest -q

@@ -489,4 +489,5 @@ def _load(
         assumptions=tuple(assumptions),
         artworks=artworks,
         input_hashes=hashes,
+        config=cfg,
     )

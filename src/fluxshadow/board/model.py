@@ -20,6 +20,7 @@ from fluxshadow.board.outline import BoardOutline
 from fluxshadow.board.registration import FrameFit
 from fluxshadow.board.stackup import Stackup
 from fluxshadow.errors import InputError, Notice
+from fluxshadow.io.config import Config
 from fluxshadow.io.records import DrillRecord, PlacementRow
 
 __all__ = ["Board", "FileUse", "Layer"]
@@ -105,6 +106,8 @@ class Board:
         Recoverable oddities met while reading.
     assumptions : tuple of str
         Values the tool had to assume, each with how to state it in the config.
+    config : Config
+        The configuration the board was read with (empty when none was found).
     """
 
     package: str
@@ -121,6 +124,7 @@ class Board:
     assumptions: tuple[str, ...]
     artworks: tuple[LayerArtwork, ...] = field(repr=False)
     input_hashes: dict[str, str] = field(default_factory=dict, repr=False)
+    config: Config = field(default_factory=Config, repr=False)
 
     def layer(self, layer: str | int | Layer) -> Layer:
         """The copper layer named ``"L<n>"``, with 1-based index ``n``, or by its file name.

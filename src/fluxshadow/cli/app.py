@@ -20,8 +20,12 @@ from fluxshadow import __version__
 from fluxshadow.board.load import load_package
 from fluxshadow.board.model import Board
 from fluxshadow.board.summary import parts_summary, stack_summary
+from fluxshadow.checks.model import Report
+from fluxshadow.checks.run import run_checks
 from fluxshadow.errors import FluxshadowError
 from fluxshadow.report.inventory import parts_text, stack_text, to_json
+from fluxshadow.report.json_report import report_to_json
+from fluxshadow.report.terminal import report_to_text
 
 __all__ = ["app", "main"]
 
@@ -40,6 +44,15 @@ class Format(StrEnum):
 
     text = "text"
     json = "json"
+
+
+class FailOn(StrEnum):
+    """Lowest unwaived severity that makes ``check`` exit with 1."""
+
+    error = "error"
+    warning = "warning"
+    note = "note"
+    never = "never"
 
 
 PackageArg = Annotated[
@@ -118,6 +131,85 @@ def parts(
         _emit(text, output)
     except (FluxshadowError, OSError) as exc:
         raise _fail(exc) from None
+
+
+FailOpt = Annotated[
+    FailOn,
+    typer.Option("--fail-on", help="Exit with 1 when an unwaived finding is at or above this."),
+]
+
+
+def _check_board(board: Board) -> Report:
+    if not sys.stderr.isatty() or not board.magnetics:
+        return run_checks(board)
+    from rich.progress import Progress
+
+    with Progress(console=_err, transient=True) as bar:
+        task = bar.add_task("checking magnetics", total=len(board.magnetics))
+
+        def step(done: int, total: int, ref: str) -> None:
+            bar.update(task, completed=done, description=f"checked {ref}")
+
+        return run_checks(board, progress=step)
+
+
+def _render(report: Report, fmt: Format, output: Path | None) -> str:
+    if fmt is Format.json:
+        return report_to_json(report)
+    color = output is None and sys.stdout.isatty()
+    width = _err.size.width if color else 110
+    return report_to_text(report, width=max(width, 80), color=color)
+
+
+@app.command()
+def check(
+    package: PackageArg,
+    fmt: FormatOpt = Format.text,
+    config: ConfigOpt = None,
+    output: OutputOpt = None,
+    fail_on: FailOpt = FailOn.error,
+) -> None:
+    """Check every power magnetic: voids, rings, cut-outs, exposed traces.
+
+    Exit codes: 0 no unwaived finding at or above --fail-on, 1 some, 2 bad input.
+    """
+    try:
+        board = _load(package, config)
+        report = _check_board(board)
+        _emit(_render(report, fmt, output), output)
+    except (FluxshadowError, OSError) as exc:
+        raise _fail(exc) from None
+    if report.failed(fail_on.value):
+        raise typer.Exit(code=1)
+
+
+@app.command()
+def demo(
+    write: Annotated[
+        Path | None,
+        typer.Option("--write", help="Also write the demo package into this folder."),
+    ] = None,
+    fmt: FormatOpt = Format.text,
+    output: OutputOpt = None,
+    fail_on: FailOpt = FailOn.never,
+) -> None:
+    """Write the bundled fictional demo board and check it."""
+    from fluxshadow.synth.demo import demo_board
+    from fluxshadow.synth.writer import write_package
+
+    try:
+        with tempfile.TemporaryDirectory(prefix="fluxshadow-demo-") as tmp:
+            folder = write if write is not None else Path(tmp) / "demo"
+            write_package(demo_board(), folder)
+            if write is not None:
+                _err.print(f"demo package written to {folder}")
+            board = _load(folder, None)
+            report = _check_board(board)
+            _emit(_render(report, fmt, output), output)
+    except (FluxshadowError, OSError) as exc:
+        raise _fail(exc) from None
+    if report.failed(fail_on.value):
+        raise typer.Exit(code=1)
 
 
 def _version(value: bool) -> None:

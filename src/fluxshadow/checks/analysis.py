@@ -1,0 +1,375 @@
+"""Shared geometry of the checks: zones, plane/trace copper, voids, rings, shadows.
+
+Computed once per magnetic (the rules only read it). Everything is in the artwork frame,
+millimetres. The copper of each layer is composed once per magnetic, for a window around
+the deepest (widest) zone; the rules clip it to each layer's zone.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Sequence
+from dataclasses import dataclass, field
+
+import numpy as np
+import shapely
+from shapely.geometry.base import BaseGeometry
+
+from fluxshadow.board.magnetics import Magnetic
+from fluxshadow.board.model import Board, Layer
+from fluxshadow.checks.model import RingInfo
+from fluxshadow.checks.settings import Settings
+from fluxshadow.io.records import TRACK
+
+__all__ = [
+    "ExposedTrace",
+    "LayerGeometry",
+    "MagneticGeometry",
+    "Void",
+    "analyse_magnetic",
+    "board_extent",
+    "layer_depths_mm",
+    "trace_void",
+    "winding_radius_mm",
+]
+
+_EPS_MM = 1e-6
+_MIN_PIECE_MM2 = 1e-4
+
+
+@dataclass(frozen=True, kw_only=True)
+class Void:
+    """One connected part of a zone without plane copper."""
+
+    polygon: BaseGeometry
+    area_mm2: float
+    to_winding_mm: float
+    ring: RingInfo | None = None
+
+
+@dataclass(frozen=True, kw_only=True)
+class ExposedTrace:
+    """Trace copper of one net on one layer, in the zone, with no plane above it."""
+
+    net: str
+    exposed: BaseGeometry
+    exposed_length_mm: float
+    length_in_zone_mm: float
+    x_mm: float
+    y_mm: float
+    return_layer: str
+    return_distance_mm: float | None
+
+
+@dataclass(kw_only=True)
+class LayerGeometry:
+    """One layer under one magnetic."""
+
+    layer: Layer
+    depth_mm: float
+    zone: BaseGeometry
+    plane: BaseGeometry
+    traces: BaseGeometry
+    plane_around: bool
+    coverage: float
+    copper_coverage: float
+    void_area_mm2: float
+    trace_area_mm2: float
+    voids: list[Void] = field(default_factory=list)
+    exposed: list[ExposedTrace] = field(default_factory=list)
+    shielded_by: str = ""
+
+
+@dataclass(kw_only=True)
+class MagneticGeometry:
+    """All the layers under one magnetic, in the order the part looks (nearest first)."""
+
+    magnetic: Magnetic
+    body: BaseGeometry
+    winding: BaseGeometry
+    winding_radius_mm: float
+    layers: list[LayerGeometry]
+    window: tuple[float, float, float, float]
+
+
+def layer_depths_mm(board: Board, side: str) -> list[float]:
+    """Depth of each copper layer below the part's mounting surface (mm), board order.
+
+    For a top part this is the layer's top-surface depth; for a bottom part the distance
+    from the board's bottom copper surface up to the layer's bottom surface.
+    """
+    st = board.stackup
+    if side == "bottom":
+        bottom = st.z_bottom_mm[-1]
+        return [bottom - zb for zb in st.z_bottom_mm]
+    return list(st.z_top_mm)
+
+
+def winding_radius_mm(magnetic: Magnetic, settings: Settings) -> float:
+    """Mean winding radius (mm): a fraction of the body's smaller side (an assumption)."""
+    return settings.winding_radius_fraction * min(magnetic.body_mm)
+
+
+def board_extent(board: Board) -> BaseGeometry:
+    """The board's shape (mm): outline polygon with cut-outs, else the copper extent."""
+    if board.outline is not None:
+        return board.outline.board
+    boxes = [a.bounds for a in board.artworks if a.bounds is not None]
+    if not boxes:
+        return shapely.Polygon()
+    b = np.array(boxes)
+    return shapely.box(b[:, 0].min(), b[:, 1].min(), b[:, 2].max(), b[:, 3].max())
+
+
+def _parts(geom: BaseGeometry) -> list[BaseGeometry]:
+    return [g for g in shapely.get_parts(geom) if g.area > _MIN_PIECE_MM2]
+
+
+def trace_void(
+    board: Board,
+    layer: Layer,
+    seed: BaseGeometry,
+    *,
+    max_half_mm: float,
+) -> RingInfo:
+    """Decide whether the copper around a void closes a ring (widening the window).
+
+    Parameters
+    ----------
+    board : Board
+    layer : Layer
+    seed : shapely geometry
+        The void (or a part of it), mm.
+    max_half_mm : float
+        Largest half-size of the search window (mm).
+
+    Returns
+    -------
+    RingInfo
+        ``closed`` when the copper-free region containing the void closes inside the
+        window without touching the board's outer edge.
+    """
+    outer = board_extent(board)
+    outer = shapely.Polygon(outer.exterior) if outer.geom_type == "Polygon" else outer.envelope
+    x0, y0, x1, y1 = seed.bounds
+    cx, cy = 0.5 * (x0 + x1), 0.5 * (y0 + y1)
+    half = max(x1 - x0, y1 - y0) * 0.5 + 2.0
+    point = seed.representative_point()
+    while True:
+        window = (cx - half, cy - half, cx + half, cy + half)
+        box = shapely.box(*window)
+        area = shapely.intersection(box, outer)
+        free = shapely.difference(area, board.copper(layer, window))
+        region = None
+        for part in shapely.get_parts(free):
+            if part.buffer(_EPS_MM).intersects(point):
+                region = part
+                break
+        if region is None:
+            # The seed lies on copper (a void filled by traces): no copper-free region.
+            return RingInfo(
+                closed=False,
+                inner_perimeter_mm=0.0,
+                inner_area_mm2=0.0,
+                search_window_mm=2 * half,
+                opened_to="filled by copper",
+            )
+        grown = region.buffer(1e-4)
+        at_edge = grown.intersects(outer.exterior)
+        window_edge = shapely.difference(box.exterior, outer.exterior.buffer(1e-3))
+        at_window = grown.intersects(window_edge)
+        info = dict(
+            inner_perimeter_mm=float(region.length),
+            inner_area_mm2=float(region.area),
+            search_window_mm=2 * half,
+        )
+        if at_edge:
+            return RingInfo(closed=False, opened_to="board edge", **info)
+        if not at_window:
+            return RingInfo(closed=True, **info)
+        if half >= max_half_mm:
+            return RingInfo(closed=False, opened_to="beyond the search window", **info)
+        half = min(2 * half, max_half_mm)
+
+
+def _track_lines(board: Board, layer: Layer, window: Sequence[float]) -> dict[str, list[BaseGeometry]]:
+    """Centre lines of the dark tracks in a window, grouped by net name ("" if none)."""
+    art = board.artwork(layer)
+    rec = art.record
+    idx = art.query(window)
+    idx = idx[(rec.obj_kind[idx] == TRACK) & rec.obj_dark[idx]]
+    out: dict[str, list[BaseGeometry]] = {}
+    rvs, ors = rec.ring_vertex_start, rec.obj_ring_start
+    for i in idx:
+        r = int(ors[i])
+        pts = rec.vertices[int(rvs[r]) : int(rvs[r + 1])]
+        if len(pts) < 2:
+            continue
+        net_i = int(rec.obj_net[i])
+        net = rec.nets[net_i] if net_i >= 0 else ""
+        out.setdefault(net, []).append(shapely.linestrings(pts))
+    return out
+
+
+def _exposed_traces(
+    board: Board,
+    geo: MagneticGeometry,
+    k: int,
+    shadow: BaseGeometry,
+    settings: Settings,
+) -> list[ExposedTrace]:
+    lg = geo.layers[k]
+    in_zone = shapely.intersection(lg.traces, lg.zone)
+    if in_zone.is_empty or in_zone.area <= _MIN_PIECE_MM2:
+        return []
+    open_area = shapely.difference(lg.zone, shadow)
+    exposed_copper = shapely.intersection(in_zone, open_area)
+    if exposed_copper.is_empty:
+        return []
+    lines = _track_lines(board, lg.layer, geo.window)
+    out: list[ExposedTrace] = []
+    covered = shapely.MultiPolygon()
+    for net, segs in sorted(lines.items()):
+        centre = shapely.union_all(segs)
+        inside = shapely.intersection(centre, in_zone.buffer(_EPS_MM))
+        if inside.length <= 0:
+            continue
+        exposed = shapely.intersection(inside, open_area)
+        length = float(exposed.length)
+        covered = shapely.union(covered, shapely.intersection(in_zone, inside.buffer(0.05)))
+        if length < settings.exposed_min_length_mm:
+            continue
+        out.append(_exposed_record(geo, k, net, exposed, length, float(inside.length)))
+    # Trace copper drawn without tracks (regions, pads) and not explained by a centre line.
+    rest = shapely.difference(exposed_copper, covered.buffer(0.1))
+    for piece in _parts(rest):
+        length = 0.5 * float(piece.length)  # half the perimeter of a thin strip
+        if length >= settings.exposed_min_length_mm and piece.area > 0.05:
+            out.append(_exposed_record(geo, k, "", piece, length, length))
+    return out
+
+
+def _exposed_record(
+    geo: MagneticGeometry, k: int, net: str, exposed: BaseGeometry, length: float, in_zone: float
+) -> ExposedTrace:
+    lg = geo.layers[k]
+    lines = [g for g in shapely.get_parts(exposed) if g.geom_type == "LineString"]
+    if lines:
+        exposed = shapely.line_merge(shapely.multilinestrings(lines))
+        p = exposed.interpolate(0.5, normalized=True)
+    else:
+        p = exposed.representative_point()
+    # The return path: the nearest layer whose plane lies under most of the exposed part.
+    best: tuple[str, float | None] = ("", None)
+    is_line = bool(lines)
+    total = float(exposed.length) if is_line else float(exposed.area)
+    candidates = sorted(
+        (j for j in range(len(geo.layers)) if j != k),
+        key=lambda j: abs(geo.layers[j].depth_mm - lg.depth_mm),
+    )
+    for j in candidates:
+        other = geo.layers[j]
+        cut = shapely.intersection(exposed, other.plane)
+        share = (float(cut.length) if is_line else float(cut.area)) / max(total, 1e-12)
+        if share >= 0.5:
+            best = (other.layer.name, abs(other.depth_mm - lg.depth_mm))
+            break
+    return ExposedTrace(
+        net=net,
+        exposed=exposed,
+        exposed_length_mm=length,
+        length_in_zone_mm=in_zone,
+        x_mm=float(p.x),
+        y_mm=float(p.y),
+        return_layer=best[0],
+        return_distance_mm=best[1],
+    )
+
+
+def analyse_magnetic(board: Board, magnetic: Magnetic, settings: Settings) -> MagneticGeometry:
+    """Zones, plane/trace copper, voids, rings and exposed traces under one magnetic.
+
+    Parameters
+    ----------
+    board : Board
+    magnetic : Magnetic
+        In the artwork frame.
+    settings : Settings
+
+    Returns
+    -------
+    MagneticGeometry
+        Layers ordered from the mounting surface away (top part: L1 first; bottom part:
+        Ln first).
+    """
+    extent = board_extent(board)
+    body = shapely.Polygon(magnetic.outline)
+    radius = winding_radius_mm(magnetic, settings)
+    winding = shapely.Point(magnetic.x_mm, magnetic.y_mm).buffer(radius, quad_segs=16)
+    depths = layer_depths_mm(board, magnetic.side)
+    order = list(range(len(board.layers)))
+    if magnetic.side == "bottom":
+        order.reverse()
+    margins = [settings.zone_margin_mm + settings.zone_spread * depths[i] for i in order]
+    widest = body.buffer(max(margins) + settings.plane_ring_mm + settings.opening_mm)
+    window = tuple(float(v) for v in widest.bounds)
+    layers: list[LayerGeometry] = []
+    for i, margin in zip(order, margins, strict=True):
+        lay = board.layers[i]
+        zone = shapely.intersection(body.buffer(margin, join_style="mitre"), extent)
+        plane, traces = board.artwork(lay).split(window, opening_mm=settings.opening_mm)
+        zone_area = float(zone.area)
+        ring_area = shapely.intersection(
+            shapely.difference(zone.buffer(settings.plane_ring_mm, join_style="mitre"), zone),
+            extent,
+        )
+        around = (
+            float(shapely.intersection(ring_area, plane).area) / float(ring_area.area)
+            if ring_area.area > 0
+            else 0.0
+        )
+        plane_in = float(shapely.intersection(plane, zone).area)
+        copper_in = plane_in + float(shapely.intersection(traces, zone).area)
+        lg = LayerGeometry(
+            layer=lay,
+            depth_mm=depths[i],
+            zone=zone,
+            plane=plane,
+            traces=traces,
+            plane_around=around >= settings.plane_around_fraction,
+            coverage=plane_in / zone_area if zone_area > 0 else 0.0,
+            copper_coverage=copper_in / zone_area if zone_area > 0 else 0.0,
+            void_area_mm2=max(zone_area - plane_in, 0.0),
+            trace_area_mm2=float(shapely.intersection(traces, zone).area),
+        )
+        if lg.plane_around:
+            for piece in _parts(shapely.difference(zone, plane)):
+                if piece.area < settings.void_min_area_mm2:
+                    continue
+                lg.voids.append(
+                    Void(
+                        polygon=piece,
+                        area_mm2=float(piece.area),
+                        to_winding_mm=float(piece.distance(winding.exterior))
+                        if not piece.intersects(winding.exterior)
+                        else 0.0,
+                        ring=trace_void(board, lay, piece, max_half_mm=settings.ring_search_max_mm),
+                    )
+                )
+            lg.voids.sort(key=lambda v: -v.area_mm2)
+        layers.append(lg)
+    geo = MagneticGeometry(
+        magnetic=magnetic,
+        body=body,
+        winding=winding,
+        winding_radius_mm=radius,
+        layers=layers,
+        window=window,  # type: ignore[arg-type]
+    )
+    shadow: BaseGeometry = shapely.MultiPolygon()
+    for k, lg in enumerate(layers):
+        if k > 0:
+            lg.exposed = _exposed_traces(board, geo, k, shadow, settings)
+            shields = [x.layer.name for x in layers[:k] if x.coverage >= 0.99]
+            lg.shielded_by = ",".join(shields)
+        shadow = shapely.union(shadow, shapely.intersection(lg.plane, shapely.box(*window)))
+    return geo

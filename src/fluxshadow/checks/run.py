@@ -1,0 +1,210 @@
+"""Run every rule over every magnetic of a board and assemble the report."""
+
+from __future__ import annotations
+
+from collections.abc import Callable
+
+import shapely
+
+from fluxshadow import __version__
+from fluxshadow.board.model import Board
+from fluxshadow.checks.analysis import MagneticGeometry, analyse_magnetic, board_extent
+from fluxshadow.checks.model import (
+    SEVERITY_RANK,
+    Finding,
+    InputFile,
+    LayerResult,
+    MagneticResult,
+    Report,
+)
+from fluxshadow.checks.rules import ASSUMPTION_SUMMARY, RULES, Context
+from fluxshadow.checks.settings import Settings, settings_from_config
+
+__all__ = ["run_checks"]
+
+Progress = Callable[[int, int, str], None]
+
+
+def _coords(geom: shapely.Geometry) -> tuple[tuple[float, float], ...]:
+    if geom.is_empty:
+        return ()
+    poly = max(shapely.get_parts(geom), key=lambda g: g.area)
+    return tuple((round(float(x), 4), round(float(y), 4)) for x, y in poly.exterior.coords)
+
+
+def _result(geo: MagneticGeometry) -> MagneticResult:
+    m = geo.magnetic
+    layers = []
+    for lg in geo.layers:
+        layers.append(
+            LayerResult(
+                layer=lg.layer.name,
+                depth_mm=round(lg.depth_mm, 4),
+                zone_area_mm2=round(float(lg.zone.area), 3),
+                plane_around=lg.plane_around,
+                coverage=round(lg.coverage, 4),
+                copper_coverage=round(lg.copper_coverage, 4),
+                void_area_mm2=round(lg.void_area_mm2, 3) if lg.plane_around else 0.0,
+                trace_area_mm2=round(lg.trace_area_mm2, 3),
+                ring=lg.voids[0].ring if lg.voids else None,
+                shielded_by=lg.shielded_by,
+            )
+        )
+    return MagneticResult(
+        ref=m.ref,
+        kind=m.kind,
+        value_text=m.value_text,
+        side=m.side,
+        x_mm=round(m.x_mm, 4),
+        y_mm=round(m.y_mm, 4),
+        body_mm=(round(m.body_mm[0], 3), round(m.body_mm[1], 3)),
+        outline=tuple((round(float(x), 4), round(float(y), 4)) for x, y in m.outline),
+        winding_radius_mm=round(geo.winding_radius_mm, 4),
+        layers=tuple(sorted(layers, key=lambda r: int(r.layer[1:]))),
+        zones={lg.layer.name: _coords(lg.zone) for lg in geo.layers},
+    )
+
+
+def _waive(findings: list[Finding], board: Board) -> tuple[list[Finding], list[str]]:
+    from dataclasses import replace
+
+    notes: list[str] = []
+    waivers = board.config.waivers
+    refs = {m.ref for m in board.magnetics} | {""}
+    layer_names = {lay.name for lay in board.layers}
+    for w in waivers:
+        if w.ref not in refs and w.ref not in ("*",):
+            notes.append(f"waiver for {w.rule} names part {w.ref!r}, which is not a magnetic here")
+        if w.layer not in ("", "*") and w.layer not in layer_names:
+            notes.append(f"waiver for {w.rule} names layer {w.layer!r}, which does not exist")
+    out = []
+    for f in findings:
+        for w in waivers:
+            if w.rule != f.rule or w.ref not in (f.ref, "*"):
+                continue
+            if w.layer not in ("", "*", f.layer):
+                continue
+            f = replace(f, waived=True, waiver_reason=w.reason)
+            break
+        out.append(f)
+    return out, notes
+
+
+def _assumptions(board: Board, geos: list[MagneticGeometry], settings: Settings) -> list[str]:
+    out = list(board.assumptions)
+    parts = {p.ref: p for p in board.config.parts}
+    in_regulator = {r for reg in board.config.regulators for r in reg.parts}
+    for geo in geos:
+        m = geo.magnetic
+        p = parts.get(m.ref)
+        if p is None or p.winding_radius_mm is None:
+            out.append(
+                f"{m.ref}: winding mean radius {geo.winding_radius_mm:.2f} mm assumed "
+                f"({settings.winding_radius_fraction:g} x the body's smaller side); state it as "
+                f"[[part]] ref = \"{m.ref}\", winding_radius_mm = ..."
+            )
+        if p is None or p.construction is None:
+            out.append(
+                f"{m.ref}: construction not stated (shielded, semi-shielded, unshielded, "
+                f"toroidal, air-core); state it as [[part]] ref = \"{m.ref}\", construction = ..."
+            )
+        if m.ref not in in_regulator:
+            out.append(
+                f"{m.ref}: no operating point; figures will be given per A/us of current slope. "
+                f"State it as [[regulator]] parts = [\"{m.ref}\"], vin_v, vout_v, fsw_hz"
+            )
+    return out
+
+
+def run_checks(
+    board: Board,
+    *,
+    settings: Settings | None = None,
+    progress: Progress | None = None,
+) -> Report:
+    """Check every magnetic of ``board`` with every rule.
+
+    Parameters
+    ----------
+    board : Board
+        From :func:`fluxshadow.load_package` (its ``config`` supplies thresholds,
+        severities and waivers).
+    settings : Settings, optional
+        Overrides the thresholds from the config.
+    progress : callable, optional
+        ``progress(done, total, ref)`` after each magnetic.
+
+    Returns
+    -------
+    Report
+        Findings sorted by severity (worst first), then part and layer.
+    """
+    cfg = board.config
+    if settings is None:
+        settings = settings_from_config(cfg.thresholds, cfg.severity, source=cfg.source)
+    ctx = Context(board=board, settings=settings)
+    extent = board_extent(board)
+    findings: list[Finding] = []
+    notices = [str(n) for n in board.notices]
+    geos: list[MagneticGeometry] = []
+    results: list[MagneticResult] = []
+    total = len(board.magnetics)
+    for n, m in enumerate(board.magnetics, start=1):
+        if not extent.is_empty and not extent.buffer(0.5).contains(shapely.Point(m.x_mm, m.y_mm)):
+            notices.append(
+                f"{m.ref} at ({m.x_mm:.2f}, {m.y_mm:.2f}) mm lies outside the board; it was "
+                "not checked (check the placement frame or the [placement] transform)"
+            )
+            if progress:
+                progress(n, total, m.ref)
+            continue
+        geo = analyse_magnetic(board, m, settings)
+        geos.append(geo)
+        results.append(_result(geo))
+        if not any(lg.copper_coverage > 0 for lg in geo.layers):
+            notices.append(f"{m.ref}: no copper at all under the part on any layer")
+        for rule in RULES.values():
+            findings.extend(rule.run(ctx, geo))
+        if progress:
+            progress(n, total, m.ref)
+    assumptions = _assumptions(board, geos, settings)
+    level = settings.severity.get("assumption", "note")
+    if level != "off":
+        for text in assumptions:
+            ref = text.split(":", 1)[0] if text.split(":", 1)[0] in {g.magnetic.ref for g in geos} else ""
+            findings.append(
+                Finding(
+                    rule="assumption",
+                    severity=level,  # type: ignore[arg-type]
+                    ref=ref,
+                    layer="",
+                    x_mm=None,
+                    y_mm=None,
+                    message=text,
+                    metrics={"what": text.split(";", 1)[0]},
+                )
+            )
+    findings, waiver_notes = _waive(findings, board)
+    notices.extend(waiver_notes)
+    layer_pos = {lay.name: lay.index for lay in board.layers}
+    findings.sort(
+        key=lambda f: (-SEVERITY_RANK[f.severity], f.rule == "assumption", f.ref, layer_pos.get(f.layer, 0))
+    )
+    rules = {rid: r.summary for rid, r in RULES.items()}
+    rules["assumption"] = ASSUMPTION_SUMMARY
+    inputs = tuple(
+        InputFile(path=f.file, kind=f.kind, use=f.use, sha256=board.input_hashes.get(f.file, ""))
+        for f in board.files
+    )
+    return Report(
+        package=board.package,
+        tool_version=__version__,
+        magnetics=tuple(results),
+        findings=tuple(findings),
+        assumptions=tuple(assumptions),
+        notices=tuple(notices),
+        inputs=inputs,
+        layers=tuple(lay.name for lay in board.layers),
+        rules=rules,
+        config=cfg.source,
+    )
