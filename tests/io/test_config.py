@@ -113,7 +113,7 @@ def test_full_config() -> None:
     assert reg.inductance_h == pytest.approx(3.3e-6)
     assert cfg.thresholds == {"coverage_min": 0.9, "induced_mv_max": 50.0}
     assert cfg.severity == {"plane-void": "warning", "exposed-trace": "off"}
-    assert cfg.waivers[0].layer == "3"
+    assert cfg.waivers[0].layer == "L3"  # a bare number names that copper layer
     assert cfg.waivers[0].reason.startswith("keep-out")
 
 

@@ -177,21 +177,25 @@ def trace_void(
         at_edge = grown.intersects(outer.exterior)
         window_edge = shapely.difference(box.exterior, outer.exterior.buffer(1e-3))
         at_window = grown.intersects(window_edge)
-        info = dict(
-            inner_perimeter_mm=float(region.length),
-            inner_area_mm2=float(region.area),
-            search_window_mm=2 * half,
-        )
+        info = {
+            "inner_perimeter_mm": float(region.length),
+            "inner_area_mm2": float(region.area),
+            "search_window_mm": 2 * half,
+        }
         if at_edge:
-            return RingInfo(closed=False, opened_to="board edge", **info)
+            return RingInfo(closed=False, opened_to="board edge", **info)  # type: ignore[arg-type]
         if not at_window:
-            return RingInfo(closed=True, **info)
+            return RingInfo(closed=True, **info)  # type: ignore[arg-type]
         if half >= max_half_mm:
-            return RingInfo(closed=False, opened_to="beyond the search window", **info)
+            return RingInfo(
+                closed=False, opened_to="beyond the search window", **info  # type: ignore[arg-type]
+            )
         half = min(2 * half, max_half_mm)
 
 
-def _track_lines(board: Board, layer: Layer, window: Sequence[float]) -> dict[str, list[BaseGeometry]]:
+def _track_lines(
+    board: Board, layer: Layer, window: Sequence[float]
+) -> dict[str, list[BaseGeometry]]:
     """Centre lines of the dark tracks in a window, grouped by net name ("" if none)."""
     art = board.artwork(layer)
     rec = art.record

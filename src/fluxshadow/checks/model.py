@@ -145,9 +145,7 @@ class Report:
 
     def worst(self, *, include_waived: bool = False) -> str | None:
         """The worst severity among findings (waived ones skipped unless asked)."""
-        ranks = [
-            f.severity for f in self.findings if include_waived or not f.waived
-        ]
+        ranks = [f.severity for f in self.findings if include_waived or not f.waived]
         return max(ranks, key=SEVERITY_RANK.__getitem__) if ranks else None
 
     def failed(self, fail_on: str) -> bool:

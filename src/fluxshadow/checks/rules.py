@@ -59,7 +59,13 @@ def _finding(
         return None
     sev: Severity = level  # type: ignore[assignment]
     return Finding(
-        rule=rule, severity=sev, ref=ref, layer=layer, x_mm=x, y_mm=y, message=message,
+        rule=rule,
+        severity=sev,
+        ref=ref,
+        layer=layer,
+        x_mm=x,
+        y_mm=y,
+        message=message,
         metrics=metrics,
     )
 
@@ -78,25 +84,36 @@ def plane_void(ctx: Context, geo: MagneticGeometry) -> list[Finding]:
         largest = lg.voids[0]
         p = largest.polygon.representative_point()
         nearest = min(v.to_winding_mm for v in lg.voids)
-        where = "reaches under the winding" if nearest == 0 else (
-            f"{nearest:.2f} mm from the winding's projection"
+        where = (
+            "reaches under the winding"
+            if nearest == 0
+            else (f"{nearest:.2f} mm from the winding's projection")
         )
         msg = (
             f"{lg.layer.name} is a plane around {m.ref} but covers {lg.coverage:.0%} of its zone: "
             f"{len(lg.voids)} void(s), {lg.void_area_mm2:.1f} mm² without plane copper; the "
             f"nearest void {where}."
         )
-        f = _finding(ctx, "plane-void", m.ref, lg.layer.name, float(p.x), float(p.y), msg, {
-            "coverage": _r(lg.coverage, 4),
-            "void_area_mm2": _r(lg.void_area_mm2),
-            "largest_void_mm2": _r(largest.area_mm2),
-            "voids": len(lg.voids),
-            "void_to_winding_mm": _r(nearest),
-            "depth_mm": _r(lg.depth_mm),
-            "zone_area_mm2": _r(lg.zone.area),
-            "shielding_db": None,
-            "delta_l_nh": None,
-        })
+        f = _finding(
+            ctx,
+            "plane-void",
+            m.ref,
+            lg.layer.name,
+            float(p.x),
+            float(p.y),
+            msg,
+            {
+                "coverage": _r(lg.coverage, 4),
+                "void_area_mm2": _r(lg.void_area_mm2),
+                "largest_void_mm2": _r(largest.area_mm2),
+                "voids": len(lg.voids),
+                "void_to_winding_mm": _r(nearest),
+                "depth_mm": _r(lg.depth_mm),
+                "zone_area_mm2": _r(lg.zone.area),
+                "shielding_db": None,
+                "delta_l_nh": None,
+            },
+        )
         if f:
             out.append(f)
     return out
@@ -125,17 +142,27 @@ def void_ring(ctx: Context, geo: MagneticGeometry) -> list[Finding]:
                     f"to the {ring.opened_to}: no ring current circulates around it."
                 )
                 severity = "note" if ctx.settings.severity.get("void-ring") != "off" else "off"
-            f = _finding(ctx, "void-ring", m.ref, lg.layer.name, float(p.x), float(p.y), msg, {
-                "closed": ring.closed,
-                "opened_to": ring.opened_to,
-                "void_area_mm2": _r(v.area_mm2),
-                "ring_inner_perimeter_mm": _r(ring.inner_perimeter_mm),
-                "ring_inner_area_mm2": _r(ring.inner_area_mm2),
-                "search_window_mm": _r(ring.search_window_mm),
-                "ring_current_a": None,
-                "moment_ratio": None,
-                "delta_l_nh": None,
-            }, severity)
+            f = _finding(
+                ctx,
+                "void-ring",
+                m.ref,
+                lg.layer.name,
+                float(p.x),
+                float(p.y),
+                msg,
+                {
+                    "closed": ring.closed,
+                    "opened_to": ring.opened_to,
+                    "void_area_mm2": _r(v.area_mm2),
+                    "ring_inner_perimeter_mm": _r(ring.inner_perimeter_mm),
+                    "ring_inner_area_mm2": _r(ring.inner_area_mm2),
+                    "search_window_mm": _r(ring.search_window_mm),
+                    "ring_current_a": None,
+                    "moment_ratio": None,
+                    "delta_l_nh": None,
+                },
+                severity,
+            )
             if f:
                 out.append(f)
     return out
@@ -156,8 +183,10 @@ def through_cutout(ctx: Context, geo: MagneticGeometry) -> list[Finding]:
         if len(d.slot_xy):
             a, b = d.slot_xy[:, 0, :], d.slot_xy[:, 1, :]
             near = (
-                (np.maximum(a[:, 0], b[:, 0]) >= x0 - 5) & (np.minimum(a[:, 0], b[:, 0]) <= x1 + 5)
-                & (np.maximum(a[:, 1], b[:, 1]) >= y0 - 5) & (np.minimum(a[:, 1], b[:, 1]) <= y1 + 5)
+                (np.maximum(a[:, 0], b[:, 0]) >= x0 - 5)
+                & (np.minimum(a[:, 0], b[:, 0]) <= x1 + 5)
+                & (np.maximum(a[:, 1], b[:, 1]) >= y0 - 5)
+                & (np.minimum(a[:, 1], b[:, 1]) <= y1 + 5)
             )
             for i in np.flatnonzero(near):
                 slot = shapely.LineString(d.slot_xy[i]).buffer(0.5 * float(d.slot_diameter_mm[i]))
@@ -189,11 +218,20 @@ def through_cutout(ctx: Context, geo: MagneticGeometry) -> list[Finding]:
         f"Board material is removed under {m.ref}: {', '.join(kinds)}; "
         f"{total.area:.1f} mm² of its body zone."
     )
-    f = _finding(ctx, "through-cutout", m.ref, "", float(p.x), float(p.y), msg, {
-        "cutout_area_mm2": _r(total.area),
-        "kind": ", ".join(kinds),
-        "pieces": len(pieces),
-    })
+    f = _finding(
+        ctx,
+        "through-cutout",
+        m.ref,
+        "",
+        float(p.x),
+        float(p.y),
+        msg,
+        {
+            "cutout_area_mm2": _r(total.area),
+            "kind": ", ".join(kinds),
+            "pieces": len(pieces),
+        },
+    )
     return [f] if f else []
 
 
@@ -213,18 +251,27 @@ def exposed_trace(ctx: Context, geo: MagneticGeometry) -> list[Finding]:
                 f"{net} on {lg.layer.name} runs {e.exposed_length_mm:.1f} mm under {m.ref} "
                 f"with no plane between it and the part; {ret}."
             )
-            f = _finding(ctx, "exposed-trace", m.ref, lg.layer.name, e.x_mm, e.y_mm, msg, {
-                "net": e.net,
-                "exposed_length_mm": _r(e.exposed_length_mm),
-                "length_in_zone_mm": _r(e.length_in_zone_mm),
-                "return_layer": e.return_layer,
-                "return_distance_mm": None
-                if e.return_distance_mm is None
-                else _r(e.return_distance_mm),
-                "depth_mm": _r(lg.depth_mm),
-                "mutual_inductance_ph": None,
-                "induced_voltage_mv": None,
-            })
+            f = _finding(
+                ctx,
+                "exposed-trace",
+                m.ref,
+                lg.layer.name,
+                e.x_mm,
+                e.y_mm,
+                msg,
+                {
+                    "net": e.net,
+                    "exposed_length_mm": _r(e.exposed_length_mm),
+                    "length_in_zone_mm": _r(e.length_in_zone_mm),
+                    "return_layer": e.return_layer,
+                    "return_distance_mm": None
+                    if e.return_distance_mm is None
+                    else _r(e.return_distance_mm),
+                    "depth_mm": _r(lg.depth_mm),
+                    "mutual_inductance_ph": None,
+                    "induced_voltage_mv": None,
+                },
+            )
             if f:
                 out.append(f)
     return out

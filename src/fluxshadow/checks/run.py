@@ -18,7 +18,8 @@ from fluxshadow.checks.model import (
     Report,
 )
 from fluxshadow.checks.rules import ASSUMPTION_SUMMARY, RULES, Context
-from fluxshadow.checks.settings import Settings, settings_from_config
+from fluxshadow.checks.settings import RULE_IDS, Settings, settings_from_config
+from fluxshadow.errors import ConfigError
 
 __all__ = ["run_checks"]
 
@@ -72,7 +73,13 @@ def _waive(findings: list[Finding], board: Board) -> tuple[list[Finding], list[s
     waivers = board.config.waivers
     refs = {m.ref for m in board.magnetics} | {""}
     layer_names = {lay.name for lay in board.layers}
-    for w in waivers:
+    for i, w in enumerate(waivers, start=1):
+        if w.rule not in RULE_IDS:
+            msg = (
+                f"{board.config.source}: waiver[{i}].rule must be one of {', '.join(RULE_IDS)}; "
+                f"got {w.rule!r}"
+            )
+            raise ConfigError(msg)
         if w.ref not in refs and w.ref not in ("*",):
             notes.append(f"waiver for {w.rule} names part {w.ref!r}, which is not a magnetic here")
         if w.layer not in ("", "*") and w.layer not in layer_names:
@@ -101,17 +108,17 @@ def _assumptions(board: Board, geos: list[MagneticGeometry], settings: Settings)
             out.append(
                 f"{m.ref}: winding mean radius {geo.winding_radius_mm:.2f} mm assumed "
                 f"({settings.winding_radius_fraction:g} x the body's smaller side); state it as "
-                f"[[part]] ref = \"{m.ref}\", winding_radius_mm = ..."
+                f'[[part]] ref = "{m.ref}", winding_radius_mm = ...'
             )
         if p is None or p.construction is None:
             out.append(
                 f"{m.ref}: construction not stated (shielded, semi-shielded, unshielded, "
-                f"toroidal, air-core); state it as [[part]] ref = \"{m.ref}\", construction = ..."
+                f'toroidal, air-core); state it as [[part]] ref = "{m.ref}", construction = ...'
             )
         if m.ref not in in_regulator:
             out.append(
                 f"{m.ref}: no operating point; figures will be given per A/us of current slope. "
-                f"State it as [[regulator]] parts = [\"{m.ref}\"], vin_v, vout_v, fsw_hz"
+                f'State it as [[regulator]] parts = ["{m.ref}"], vin_v, vout_v, fsw_hz'
             )
     return out
 
@@ -171,7 +178,11 @@ def run_checks(
     level = settings.severity.get("assumption", "note")
     if level != "off":
         for text in assumptions:
-            ref = text.split(":", 1)[0] if text.split(":", 1)[0] in {g.magnetic.ref for g in geos} else ""
+            ref = (
+                text.split(":", 1)[0]
+                if text.split(":", 1)[0] in {g.magnetic.ref for g in geos}
+                else ""
+            )
             findings.append(
                 Finding(
                     rule="assumption",
@@ -188,7 +199,12 @@ def run_checks(
     notices.extend(waiver_notes)
     layer_pos = {lay.name: lay.index for lay in board.layers}
     findings.sort(
-        key=lambda f: (-SEVERITY_RANK[f.severity], f.rule == "assumption", f.ref, layer_pos.get(f.layer, 0))
+        key=lambda f: (
+            -SEVERITY_RANK[f.severity],
+            f.rule == "assumption",
+            f.ref,
+            layer_pos.get(f.layer, 0),
+        )
     )
     rules = {rid: r.summary for rid, r in RULES.items()}
     rules["assumption"] = ASSUMPTION_SUMMARY

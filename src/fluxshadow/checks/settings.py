@@ -98,4 +98,4 @@ def settings_from_config(
             msg = f"{where}severity.{rule} must name a rule ({', '.join(RULE_IDS)}); got {rule!r}"
             raise ConfigError(msg)
         sev[rule] = level
-    return replace(Settings(**values), severity=sev)
+    return replace(Settings(), **values, severity=sev)  # type: ignore[arg-type]

@@ -508,9 +508,13 @@ def _waivers(c: _Checker, value: object) -> tuple[Waiver, ...]:
     for i, t in enumerate(c.tables(value, "waiver"), start=1):
         p = f"waiver[{i}]"
         c.keys(t, _WAIVER_KEYS, p)
-        layer = c.required(t, "layer", p)
+        # ``layer`` is optional: absent, "" or "*" waive the finding on any layer; a bare
+        # number means that copper layer (2 -> "L2").
+        layer = t.get("layer", "*")
         if isinstance(layer, int) and not isinstance(layer, bool):
-            layer = str(layer)
+            layer = f"L{layer}"
+        if layer == "":
+            layer = "*"
         out.append(
             Waiver(
                 rule=c.text(c.required(t, "rule", p), f"{p}.rule"),

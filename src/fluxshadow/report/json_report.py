@@ -39,7 +39,7 @@ def _ring(ring: RingInfo | None) -> dict[str, Any] | None:
 
 def report_to_dict(report: Report) -> dict[str, Any]:
     """The report as JSON-ready data (see ``docs/report.schema.json``)."""
-    counts = {s: 0 for s in SEVERITIES}
+    counts = dict.fromkeys(SEVERITIES, 0)
     waived = 0
     for f in report.findings:
         if f.waived:

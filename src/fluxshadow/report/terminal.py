@@ -75,8 +75,12 @@ def _panel(m: MagneticResult, findings: list[Finding]) -> Panel:
         for f in findings:
             ft.add_row(_badge(f), Text(f.rule), Text(f.layer or "-"), Text(f.message))
             if f.waived:
-                ft.add_row(Text(""), Text(""), Text(""), Text(f"waived: {f.waiver_reason}",
-                                                              style=STYLE["waived"]))
+                ft.add_row(
+                    Text(""),
+                    Text(""),
+                    Text(""),
+                    Text(f"waived: {f.waiver_reason}", style=STYLE["waived"]),
+                )
         body.append(Text(""))
         body.append(ft)
     else:
@@ -136,8 +140,10 @@ def report_to_text(report: Report, *, width: int = 110, color: bool = False) -> 
         console.print(Text("Notices", style=STYLE["title"]))
         for n in report.notices:
             console.print(Text(f"  - {n}"))
-    counts = {s: sum(1 for f in report.findings if f.severity == s and not f.waived)
-              for s in ("error", "warning", "note")}
+    counts = {
+        s: sum(1 for f in report.findings if f.severity == s and not f.waived)
+        for s in ("error", "warning", "note")
+    }
     waived = sum(1 for f in report.findings if f.waived)
     summary = Text.assemble(
         f"{len(report.magnetics)} magnetic(s): ",
