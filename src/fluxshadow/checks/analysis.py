@@ -289,7 +289,13 @@ def _exposed_record(
     )
 
 
-def analyse_magnetic(board: Board, magnetic: Magnetic, settings: Settings) -> MagneticGeometry:
+def analyse_magnetic(
+    board: Board,
+    magnetic: Magnetic,
+    settings: Settings,
+    *,
+    radius_mm: float | None = None,
+) -> MagneticGeometry:
     """Zones, plane/trace copper, voids, rings and exposed traces under one magnetic.
 
     Parameters
@@ -298,6 +304,8 @@ def analyse_magnetic(board: Board, magnetic: Magnetic, settings: Settings) -> Ma
     magnetic : Magnetic
         In the artwork frame.
     settings : Settings
+    radius_mm : float, optional
+        Winding mean radius stated in the config (mm); default from the body size.
 
     Returns
     -------
@@ -307,7 +315,7 @@ def analyse_magnetic(board: Board, magnetic: Magnetic, settings: Settings) -> Ma
     """
     extent = board_extent(board)
     body = shapely.Polygon(magnetic.outline)
-    radius = winding_radius_mm(magnetic, settings)
+    radius = radius_mm if radius_mm is not None else winding_radius_mm(magnetic, settings)
     winding = shapely.Point(magnetic.x_mm, magnetic.y_mm).buffer(radius, quad_segs=16)
     depths = layer_depths_mm(board, magnetic.side)
     order = list(range(len(board.layers)))

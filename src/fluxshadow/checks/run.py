@@ -165,7 +165,10 @@ def run_checks(
             if progress:
                 progress(n, total, m.ref)
             continue
-        geo = analyse_magnetic(board, m, settings)
+        part = next((p for p in cfg.parts if p.ref == m.ref), None)
+        geo = analyse_magnetic(
+            board, m, settings, radius_mm=part.winding_radius_mm if part else None
+        )
         geos.append(geo)
         results.append(_result(geo))
         if not any(lg.copper_coverage > 0 for lg in geo.layers):
