@@ -130,67 +130,90 @@ def trace_void(
     seed: BaseGeometry,
     *,
     max_half_mm: float,
+    known: tuple[tuple[float, float, float, float], BaseGeometry] | None = None,
 ) -> RingInfo:
     """Decide whether the copper around a void closes a ring (widening the window).
+
+    The copper-free region containing ``seed`` is traced in a square window around it;
+    the window doubles until the region closes inside it (a closed ring), reaches the
+    board's outer edge (opened), or the window reaches ``max_half_mm`` (opened into a
+    copper-free area larger than the search).
 
     Parameters
     ----------
     board : Board
     layer : Layer
     seed : shapely geometry
-        The void (or a part of it), mm.
+        A copper-free part of the void (mm).
     max_half_mm : float
         Largest half-size of the search window (mm).
+    known : (window, copper), optional
+        Copper already composed for a window around the seed, tried first.
 
     Returns
     -------
     RingInfo
-        ``closed`` when the copper-free region containing the void closes inside the
-        window without touching the board's outer edge.
     """
     outer = board_extent(board)
     outer = shapely.Polygon(outer.exterior) if outer.geom_type == "Polygon" else outer.envelope
+    edge = outer.exterior
+    point = seed.representative_point()
     x0, y0, x1, y1 = seed.bounds
     cx, cy = 0.5 * (x0 + x1), 0.5 * (y0 + y1)
     half = max(x1 - x0, y1 - y0) * 0.5 + 2.0
-    point = seed.representative_point()
+    tries: list[tuple[tuple[float, float, float, float], BaseGeometry | None]] = []
+    if known is not None:
+        tries.append((known[0], known[1]))
     while True:
-        window = (cx - half, cy - half, cx + half, cy + half)
+        if tries:
+            window, copper = tries.pop(0)
+        else:
+            window, copper = (cx - half, cy - half, cx + half, cy + half), None
+        if copper is None:
+            copper = board.copper(layer, window)
         box = shapely.box(*window)
-        area = shapely.intersection(box, outer)
-        free = shapely.difference(area, board.copper(layer, window))
-        region = None
-        for part in shapely.get_parts(free):
-            if part.buffer(_EPS_MM).intersects(point):
-                region = part
-                break
-        if region is None:
-            # The seed lies on copper (a void filled by traces): no copper-free region.
+        free = shapely.difference(shapely.intersection(box, outer), copper)
+        parts = np.asarray(shapely.get_parts(free))
+        hit = parts[shapely.dwithin(parts, point, _EPS_MM)] if len(parts) else parts
+        if len(hit) == 0:
             return RingInfo(
                 closed=False,
                 inner_perimeter_mm=0.0,
                 inner_area_mm2=0.0,
-                search_window_mm=2 * half,
-                opened_to="filled by copper",
+                search_window_mm=window[2] - window[0],
+                opened_to="no copper-free area",
             )
-        grown = region.buffer(1e-4)
-        at_edge = grown.intersects(outer.exterior)
-        window_edge = shapely.difference(box.exterior, outer.exterior.buffer(1e-3))
-        at_window = grown.intersects(window_edge)
-        info = {
-            "inner_perimeter_mm": float(region.length),
-            "inner_area_mm2": float(region.area),
-            "search_window_mm": 2 * half,
-        }
+        region = hit[0]
+        size = max(window[2] - window[0], window[3] - window[1])
+        at_edge = bool(shapely.dwithin(region, edge, 1e-4))
+        # Contact with the window's own sides (not where they run along the board edge).
+        sides = shapely.difference(box.exterior, shapely.buffer(edge, 1e-3))
+        at_window = bool(shapely.dwithin(region, sides, 1e-4))
+        perimeter, area = float(region.length), float(region.area)
         if at_edge:
-            return RingInfo(closed=False, opened_to="board edge", **info)  # type: ignore[arg-type]
-        if not at_window:
-            return RingInfo(closed=True, **info)  # type: ignore[arg-type]
-        if half >= max_half_mm:
             return RingInfo(
-                closed=False, opened_to="beyond the search window", **info  # type: ignore[arg-type]
+                closed=False,
+                opened_to="board edge",
+                inner_perimeter_mm=perimeter,
+                inner_area_mm2=area,
+                search_window_mm=size,
             )
-        half = min(2 * half, max_half_mm)
+        if not at_window:
+            return RingInfo(
+                closed=True,
+                inner_perimeter_mm=perimeter,
+                inner_area_mm2=area,
+                search_window_mm=size,
+            )
+        if 0.5 * size >= max_half_mm:
+            return RingInfo(
+                closed=False,
+                opened_to=f"copper-free area beyond {size:.0f} mm",
+                inner_perimeter_mm=perimeter,
+                inner_area_mm2=area,
+                search_window_mm=size,
+            )
+        half = min(max(2 * half, size), max_half_mm)
 
 
 def _track_lines(
@@ -229,9 +252,10 @@ def _exposed_traces(
     exposed_copper = shapely.intersection(in_zone, open_area)
     if exposed_copper.is_empty:
         return []
+    # Only drawn tracks count as traces: pads and regions narrower than the opening are
+    # copper too, but not conductors running under the part.
     lines = _track_lines(board, lg.layer, geo.window)
     out: list[ExposedTrace] = []
-    covered = shapely.MultiPolygon()
     for net, segs in sorted(lines.items()):
         centre = shapely.union_all(segs)
         inside = shapely.intersection(centre, in_zone.buffer(_EPS_MM))
@@ -239,16 +263,9 @@ def _exposed_traces(
             continue
         exposed = shapely.intersection(inside, open_area)
         length = float(exposed.length)
-        covered = shapely.union(covered, shapely.intersection(in_zone, inside.buffer(0.05)))
         if length < settings.exposed_min_length_mm:
             continue
         out.append(_exposed_record(geo, k, net, exposed, length, float(inside.length)))
-    # Trace copper drawn without tracks (regions, pads) and not explained by a centre line.
-    rest = shapely.difference(exposed_copper, covered.buffer(0.1))
-    for piece in _parts(rest):
-        length = 0.5 * float(piece.length)  # half the perimeter of a thin strip
-        if length >= settings.exposed_min_length_mm and piece.area > 0.05:
-            out.append(_exposed_record(geo, k, "", piece, length, length))
     return out
 
 
@@ -354,17 +371,27 @@ def analyse_magnetic(
             trace_area_mm2=float(shapely.intersection(traces, zone).area),
         )
         if lg.plane_around:
+            copper = shapely.union(plane, traces)
             for piece in _parts(shapely.difference(zone, plane)):
                 if piece.area < settings.void_min_area_mm2:
                     continue
+                free = _parts(shapely.difference(piece, copper))
+                if not free or max(f.area for f in free) < settings.void_min_area_mm2:
+                    continue  # filled by narrow copper (pads, traces): not a void
+                seed = max(free, key=lambda f: f.area)
+                touches = piece.intersects(winding.exterior) or piece.intersects(winding)
                 lg.voids.append(
                     Void(
                         polygon=piece,
                         area_mm2=float(piece.area),
-                        to_winding_mm=float(piece.distance(winding.exterior))
-                        if not piece.intersects(winding.exterior)
-                        else 0.0,
-                        ring=trace_void(board, lay, piece, max_half_mm=settings.ring_search_max_mm),
+                        to_winding_mm=0.0 if touches else float(piece.distance(winding.exterior)),
+                        ring=trace_void(
+                            board,
+                            lay,
+                            seed,
+                            max_half_mm=settings.ring_search_max_mm,
+                            known=(window, copper),  # type: ignore[arg-type]
+                        ),
                     )
                 )
             lg.voids.sort(key=lambda v: -v.area_mm2)

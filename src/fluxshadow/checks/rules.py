@@ -138,7 +138,7 @@ def void_ring(ctx: Context, geo: MagneticGeometry) -> list[Finding]:
                 severity = None
             else:
                 msg = (
-                    f"The void of {v.area_mm2:.1f} mm² on {lg.layer.name} under {m.ref} is opened "
+                    f"The void of {v.area_mm2:.1f} mm² on {lg.layer.name} under {m.ref} opens "
                     f"to the {ring.opened_to}: no ring current circulates around it."
                 )
                 severity = "note" if ctx.settings.severity.get("void-ring") != "off" else "off"
@@ -174,10 +174,16 @@ def through_cutout(ctx: Context, geo: MagneticGeometry) -> list[Finding]:
     m = geo.magnetic
     zone0 = geo.layers[0].zone
     pieces: list[tuple[str, BaseGeometry]] = []
-    if board.outline is not None:
+    if board.outline is not None and board.outline.cutouts:
+        # The zone is clipped to the board, whose cut-outs are holes in it, so a cut-out
+        # meets that zone only along its edge: measure it against the unclipped body zone.
+        s = ctx.settings
+        margin0 = s.zone_margin_mm + s.zone_spread * geo.layers[0].depth_mm
+        reach = geo.body.buffer(margin0, join_style="mitre")
         for c in board.outline.cutouts:
-            if c.intersects(zone0):
-                pieces.append(("outline cut-out", shapely.intersection(c, zone0)))
+            piece = shapely.intersection(c, reach)
+            if piece.area > 0:
+                pieces.append(("outline cut-out", piece))
     x0, y0, x1, y1 = zone0.bounds
     for d in board.drills:
         if len(d.slot_xy):
@@ -203,7 +209,7 @@ def through_cutout(ctx: Context, geo: MagneticGeometry) -> list[Finding]:
     # A spot with no copper on any layer.
     spot = zone0
     for lg in geo.layers:
-        spot = shapely.difference(spot, board.copper(lg.layer, geo.window))
+        spot = shapely.difference(spot, shapely.union(lg.plane, lg.traces))
     removed = shapely.union_all([g for _, g in pieces]) if pieces else shapely.Polygon()
     spot = shapely.difference(spot, removed)
     for part in shapely.get_parts(spot):
