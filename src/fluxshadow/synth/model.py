@@ -125,6 +125,9 @@ class SynthBoard:
     ``placement_offset`` shifts the placement file's frame against the artwork
     (placement = artwork - offset; bottom X is written mirrored when
     ``mirror_bottom_x`` is set).
+
+    ``config_text``, when not empty, is written as ``fluxshadow.toml`` into the package
+    folder (TOML text, see :mod:`fluxshadow.io.config`).
     """
 
     name: str
@@ -144,3 +147,4 @@ class SynthBoard:
     write_job: bool = True
     placement_style: Literal["csv", "text"] = "csv"
     extra_files: dict[str, str] = field(default_factory=dict)
+    config_text: str = ""

@@ -1,7 +1,8 @@
 """Write a :class:`~fluxshadow.synth.model.SynthBoard` as a fabrication package.
 
 Output: Gerber X2 copper, paste and profile files, an Excellon drill file, a placement
-file, a BOM and (optionally) a Gerber job file with the stack-up. Everything is written
+file, a BOM, (optionally) a Gerber job file with the stack-up and (optionally) a
+``fluxshadow.toml`` configuration. Everything is written
 from the description alone, so the expected geometry is known exactly.
 """
 
@@ -400,6 +401,8 @@ def write_package(board: SynthBoard, folder: str | os.PathLike[str]) -> list[Pat
         files[f"{board.name}-NPTH.drl"] = _drill_text(board, False)
     if board.write_job and not bare:
         files[f"{board.name}.gbrjob"] = _job_text(board, names)
+    if board.config_text:
+        files["fluxshadow.toml"] = board.config_text
     files.update(board.extra_files)
     for name, text in files.items():
         path = out / name
