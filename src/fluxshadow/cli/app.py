@@ -7,6 +7,7 @@ Data goes to stdout (or ``--output``), progress and messages to stderr.
 from __future__ import annotations
 
 import os
+from dataclasses import replace
 import sys
 import tempfile
 from enum import StrEnum
@@ -204,7 +205,7 @@ def demo(
             if write is not None:
                 _err.print(f"demo package written to {folder}")
             board = _load(folder, None)
-            report = _check_board(board)
+            report = replace(_check_board(board), package="bundled demo (QX-40 rail board)")
             _emit(_render(report, fmt, output), output)
     except (FluxshadowError, OSError) as exc:
         raise _fail(exc) from None

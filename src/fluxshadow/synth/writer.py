@@ -291,7 +291,7 @@ def _placement_text(board: SynthBoard) -> str:
             )
         lines.append("## End")
         return "\n".join(lines) + "\n"
-    lines = ["Ref,Val,Package,PosX,PosY,Rot,Side"]
+    lines = ["Ref,Val,Package,PosX(mm),PosY(mm),Rot,Side"]
     for p in board.parts:
         x, y = _placement_xy(board, p)
         lines.append(
