@@ -292,7 +292,7 @@ def test_lr_rotates_a_rectangle_flash() -> None:
 
 
 def test_lm_mirror_then_rotate_then_scale() -> None:
-    # Macro triangle with vertex (1, 0.5). Spec 4.9 (from memory): mirroring, then
+    # Macro triangle with vertex (1, 0.5). Spec 4.9.1 (order from memory): mirroring, then
     # rotation, then scaling. LMX: (1, 0.5) -> (-1, 0.5); LR90: -> (-0.5, -1);
     # LS2: -> (-1, -2). Rotating first would give (0.5, 1) -> (1, 2) instead.
     rec = gbr(TRI + "%ADD10TRI*%\nD10*\n%LMX*%\n%LR90*%\n%LS2*%\nX0Y0D03*")
@@ -482,3 +482,43 @@ def test_comment_with_percent_sign_on_one_line() -> None:
         ("Scale: 100%, mirrored: no",),
         "mm",
     )
+
+
+def test_large_region_dedupes_and_closes() -> None:
+    # 300-gon (large enough for the array path), one vertex written twice, not closed
+    ang = np.arange(300) * 2 * np.pi / 300
+    pts = np.round(np.column_stack([np.cos(ang), np.sin(ang)]) * 1e6).astype(int)
+    lines = [f"X{x}Y{y}D01*" for x, y in pts[1:]]
+    lines.insert(10, lines[9])
+    body = "G01*\nG36*\n" + f"X{pts[0][0]}Y{pts[0][1]}D02*\n" + "\n".join(lines) + "\nG37*"
+    rec = gbr(body)
+    (ring,) = rings(rec, 0)
+    assert ring.shape == (301, 2)
+    np.testing.assert_array_equal(ring[0], ring[-1])
+    np.testing.assert_allclose(ring[:-1], pts / 1e6)
+    assert any("closed" in n.message for n in rec.notices)
+
+
+def test_m00_m01_and_unknown_g_code() -> None:
+    rec = gbr(
+        "%ADD10C,1*%\nD10*\nG10*\nX0Y0D03*\nM01*\nX1000000Y0D03*\nM00*\nX2000000Y0D03*", end=""
+    )
+    assert rec.n_objects == 2
+    msgs = " ".join(n.message for n in rec.notices)
+    assert "G10" in msgs
+    assert "M01" in msgs
+    assert "M00" in msgs
+    assert "after the end-of-file" in msgs
+    assert "truncated" not in msgs
+
+
+def test_arc_before_any_quadrant_mode() -> None:
+    # No G74/G75: a consistent multi-quadrant centre is used (with a notice) ...
+    rec = gbr("%ADD10C,0.1*%\nD10*\nX1000000Y0D02*\nG03X0Y1000000I-1000000J0D01*")
+    pts = rings(rec, 0)[0]
+    np.testing.assert_allclose(np.hypot(pts[:, 0], pts[:, 1]), 1.0, atol=1e-12)
+    assert any("G74/G75" in n.message for n in rec.notices)
+    # ... and unsigned offsets that only make sense single-quadrant are read that way
+    rec2 = gbr("%ADD10C,0.1*%\nD10*\nX1000000Y0D02*\nG03X0Y1000000I1000000J0D01*")
+    q = rings(rec2, 0)[0]
+    np.testing.assert_allclose(np.hypot(q[:, 0], q[:, 1]), 1.0, atol=1e-12)

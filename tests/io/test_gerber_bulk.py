@@ -71,6 +71,7 @@ def render(ops: list[tuple[int | None, int | None, int]], trailing: bool, scale:
     trailing=st.booleans(),
     start_point=st.booleans(),
     lead=st.sampled_from(["", "X1000Y1000D01*\n", "X1000Y1000D02*\n"]),
+    full=st.booleans(),
 )
 def test_bulk_equals_scalar(
     ops: list[tuple[int | None, int | None, int]],
@@ -79,10 +80,13 @@ def test_bulk_equals_scalar(
     trailing: bool,
     start_point: bool,
     lead: str,
+    full: bool,
 ) -> None:
     fs = f"%FS{'T' if trailing else 'L'}{'I' if incremental else 'A'}X34Y34*%\n%MOMM*%\n"
     if region:
         ops = [(x, y, 1 if d == 3 else d) for x, y, d in ops]
+    if full:  # every statement with X and Y (the bulk path's fastest case)
+        ops = [(x or 0, y or 0, d) for x, y, d in ops]
     body = "%TO.N,NET1*%\n%ADD10C,0.1*%\nD10*\nG01*\n"
     if start_point:
         body += "X0Y0D02*\n"

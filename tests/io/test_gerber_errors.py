@@ -152,3 +152,10 @@ def test_file_size_limit_and_unreadable_file(tmp_path: Path) -> None:
         read_gerber(tmp_path / "missing.gbr")
     with pytest.raises(LimitError, match="text size must be at most"):
         parse_gerber(HEAD, max_bytes=5)
+
+
+def test_bad_limit_options_are_config_errors() -> None:
+    from fluxshadow.errors import ConfigError
+
+    with pytest.raises(ConfigError, match="max_repeat must be >= 1; got 0"):
+        parse_gerber(HEAD, max_repeat=0)

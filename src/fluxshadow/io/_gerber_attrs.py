@@ -96,7 +96,8 @@ def scan_header(
     file_attributes : dict of str to str
         ``TF`` attributes (also those inside ``G04 #@!`` comments), values joined by ``,``.
     comments : tuple of str
-        The stripped texts of the first ``G04`` comments.
+        The stripped, non-empty texts of the first ``G04`` comments (and ``%IN`` image
+        names as ``"IN <name>"``).
     units : {"mm", "inch"} or None
         From the first ``%MO`` or legacy ``G70``/``G71``; None when absent.
     """
@@ -123,8 +124,9 @@ def scan_header(
             parsed = comment_attribute(comment)
             if parsed is not None and parsed[0] == "TF" and parsed[1]:
                 attrs[parsed[1]] = ",".join(parsed[2])
-            if len(comments) < max_comments:
-                comments.append(comment.strip())
+            text = comment.strip()
+            if text and len(comments) < max_comments:
+                comments.append(text)
         elif units is None:
             units = "inch" if g7 == "0" else "mm"
     return attrs, tuple(comments), units

@@ -286,8 +286,9 @@ def thermal_rings(
 class Transform:
     """A similarity about the origin: ``p -> scale * R(rotation_deg) * Mx^mirror_x * p``.
 
-    ``Mx`` negates x. Gerber's LM/LR/LS map onto it as mirror first, then rotate, then
-    scale; LMY (negate y) is ``R(180°) Mx`` and LMXY is ``R(180°)``.
+    ``Mx`` negates x. Gerber's LM/LR/LS (spec rev 2023.08 sections 4.9.3-4.9.5) map onto
+    it as mirror first, then rotate, then scale (order per section 4.9.1, from memory);
+    LMX negates x, LMY (negate y) is ``R(180°) Mx`` and LMXY is ``R(180°)``.
     """
 
     mirror_x: bool = False

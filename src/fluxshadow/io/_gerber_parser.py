@@ -2,7 +2,8 @@
 
 Tokenising: one compiled pattern splits the whole text into (1) runs of plain
 coordinate operations (``X..Y..D01*`` / ``D02*`` / ``D03*`` without G-code or I/J),
-(2) extended commands ``%...%``, (3) other word commands ``...*``. Long runs in linear
+(2) extended commands ``%...%``, (3) ``G04`` comments, (4) other word commands ``...*``.
+Long runs in linear
 interpolation mode are interpreted in bulk with numpy (number conversion, modal
 coordinates, track chaining, region contours); everything else goes statement by
 statement through the same rules. Both paths give identical tables (tested).
@@ -62,6 +63,7 @@ _MASTER = re.compile(
     r"|(\S)"  # 5: anything else (unterminated statement)
 )
 _SIMPLE = re.compile(r"(?:X([+-]?\d++))?+(?:Y([+-]?\d++))?+D0*+([123])\*")
+_TO_SPACES = str.maketrans("XYD*", "    ")
 _COL0 = itemgetter(0)
 _COL1 = itemgetter(1)
 _COL2 = itemgetter(2)
@@ -161,7 +163,6 @@ class _Parser:
         self.rstarts: list[int] = []
         self.contour_open = False
         self.region_attrs = (-1, -1, -1, True)
-        self.region_unclosed = 0
         # definitions
         self.macros: dict[str, MacroTemplate] = {}
         self.apdefs: dict[int, _ApDef | _BlockDef] = {}
@@ -522,25 +523,37 @@ class _Parser:
         self.contour_open = False
         if not self.rstarts:
             return
-        arr = np.asarray(self.rverts, dtype=np.float64).reshape(-1, 2)
-        bounds = [*self.rstarts, len(arr)]
-        rings: list[FloatArray] = []
+        rv = self.rverts
+        bounds = [*self.rstarts, len(rv) // 2]
+        rings: list[list[float]] = []
+        arr = np.asarray(rv, dtype=np.float64).reshape(-1, 2) if len(rv) > 512 else None
         for a, b in itertools.pairwise(bounds):
-            c = arr[a:b]
-            if len(c) > 1:
-                keep = np.ones(len(c), dtype=np.bool_)
-                keep[1:] = np.any(c[1:] != c[:-1], axis=1)
-                c = c[keep]
-            if len(c) > 1 and c[0, 0] == c[-1, 0] and c[0, 1] == c[-1, 1]:
-                c = c[:-1]
-            elif len(c) >= 3:
-                self.region_unclosed += 1
+            # Drop repeated vertices, then a closing vertex; fewer than 3 left: no area.
+            if arr is not None:
+                c = arr[a:b]
+                if len(c) > 1:
+                    keep = np.ones(len(c), dtype=np.bool_)
+                    keep[1:] = np.any(c[1:] != c[:-1], axis=1)
+                    c = c[keep]
+                closed = len(c) > 1 and c[0, 0] == c[-1, 0] and c[0, 1] == c[-1, 1]
+                n_distinct = len(c) - 1 if closed else len(c)
+                if n_distinct >= 3:
+                    rings.append(np.vstack([c[:n_distinct], c[:1]]).ravel().tolist())
+            else:
+                flat = rv[2 * a : 2 * b]
+                pts = list(zip(flat[0::2], flat[1::2], strict=True))
+                pts = [pts[0], *(p for p, q in zip(pts[1:], pts[:-1], strict=True) if p != q)]
+                closed = len(pts) > 1 and pts[0] == pts[-1]
+                if closed:
+                    pts.pop()
+                n_distinct = len(pts)
+                if n_distinct >= 3:
+                    pts.append(pts[0])
+                    rings.append([v for p in pts for v in p])
+            if not closed and n_distinct >= 3:
                 self.note(
                     "unclosed", pos, "region contours must be closed; an open contour was closed"
                 )
-            if len(c) < 3:
-                continue
-            rings.append(np.vstack([c, c[:1]]))
         if not rings:
             return
         net, comp, func, dark = self.region_attrs
@@ -548,15 +561,15 @@ class _Parser:
         t.kind.append(REGION)
         t.dark.append(dark)
         t.ap.append(-1)
-        t.ox.append(float(rings[0][0, 0]))
-        t.oy.append(float(rings[0][0, 1]))
+        t.ox.append(float(rings[0][0]))
+        t.oy.append(float(rings[0][1]))
         t.rstart.append(len(t.vstart))
         t.net.append(net)
         t.comp.append(comp)
         t.func.append(func)
         for ring in rings:
             t.vstart.append(len(t.verts) // 2)
-            t.verts.extend(ring.ravel().tolist())
+            t.verts.extend(ring)
 
     def region_draw(self, pts: list[float], pos: int, stmt: str) -> None:
         if not self.contour_open:
@@ -736,45 +749,75 @@ class _Parser:
     def bulk_ok(self) -> bool:
         return self.fs_set and self.unit_mm is not None and self.interp == 1
 
-    def bulk_coords(self, col: list[str], start: float, axis: int) -> FloatArray:
+    def column_counts(self, col: list[str], axis: int) -> tuple[FloatArray, npt.NDArray[np.bool_]]:
+        """Coordinate strings of one axis as raw integer counts (0 where absent) and mask."""
         n = len(col)
         mask = np.fromiter(map(bool, col), dtype=np.bool_, count=n)
-        raw = np.zeros(n, dtype=np.float64)
+        counts = np.zeros(n, dtype=np.float64)
         n_set = int(np.count_nonzero(mask))
-        if n_set:
-            f = self.fx if axis == 0 else self.fy
-            if self.omit == "T":
-                total = sum(self.x_digits if axis == 0 else self.y_digits)
-                iv = np.array(
-                    [
-                        (-1 if s[0] == "-" else 1)
-                        * int(s.lstrip("+-"))
-                        * 10 ** max(total - len(s.lstrip("+-")), 0)
-                        for s in col
-                        if s
-                    ],
-                    dtype=np.int64,
-                )
-            else:
-                # Joining the digit strings and parsing them in one call is far faster
-                # than converting each string.
-                iv = np.fromstring(" ".join(filter(None, col)), dtype=np.int64, sep=" ")
-                if iv.shape[0] != n_set:
-                    msg = "coordinate digits must parse as integers; got a mismatch"
-                    raise ValueError(msg)
-            raw[mask] = iv * f
+        if not n_set:
+            return counts, mask
+        if self.omit == "T":
+            total = sum(self.x_digits if axis == 0 else self.y_digits)
+            iv = np.array(
+                [
+                    (-1 if s[0] == "-" else 1)
+                    * int(s.lstrip("+-"))
+                    * 10 ** max(total - len(s.lstrip("+-")), 0)
+                    for s in col
+                    if s
+                ],
+                dtype=np.int64,
+            )
+        else:
+            # Joining the digit strings and parsing them in one call is far faster than
+            # converting each string.
+            iv = np.fromstring(" ".join(filter(None, col)), dtype=np.int64, sep=" ")
+            if iv.shape[0] != n_set:
+                msg = "coordinate digits must parse as integers; got a mismatch"
+                raise ValueError(msg)
+        counts[mask] = iv
+        return counts, mask
+
+    def axis_values(
+        self, counts: FloatArray, mask: npt.NDArray[np.bool_] | None, start: float, axis: int
+    ) -> FloatArray:
+        """Absolute coordinates (mm) from raw counts: modal fill or accumulation.
+
+        ``mask`` None means every statement carries the coordinate. The products and
+        sums are the same floating-point operations as in the scalar path.
+        """
+        raw = counts * (self.fx if axis == 0 else self.fy)
         if self.incremental:
             out: FloatArray = np.cumsum(np.concatenate([[start], raw]))[1:]
             return out
-        idx = np.where(mask, np.arange(n), -1)
-        idx = np.maximum.accumulate(idx)
+        if mask is None:
+            return raw
+        n = raw.shape[0]
+        idx = np.maximum.accumulate(np.where(mask, np.arange(n), -1))
         return np.where(idx >= 0, raw[np.maximum(idx, 0)], start)
 
     def bulk(self, run: str, pos: int) -> bool:
-        tups = _SIMPLE.findall(run)
-        d = (np.frombuffer("".join(map(_COL2, tups)).encode("ascii"), dtype=np.uint8) - 48).astype(
-            np.int8
-        )
+        n = run.count("*")
+        mx: npt.NDArray[np.bool_] | None = None
+        my: npt.NDArray[np.bool_] | None = None
+        if self.omit == "L" and run.count("X") == n and run.count("Y") == n:
+            # Every statement is X<int>Y<int>D<int>*: read all numbers in one call.
+            flat = np.fromstring(run.translate(_TO_SPACES), dtype=np.int64, sep=" ")
+            if flat.shape[0] != 3 * n:
+                return False
+            table = flat.reshape(n, 3)
+            if np.any(np.abs(table[:, :2]) >= 2**53):
+                return False  # not exactly representable; the scalar path decides
+            cx = table[:, 0].astype(np.float64)
+            cy = table[:, 1].astype(np.float64)
+            d = table[:, 2].astype(np.int8)
+        else:
+            tups = _SIMPLE.findall(run)
+            codes = "".join(map(_COL2, tups)).encode("ascii")
+            d = (np.frombuffer(codes, dtype=np.uint8) - 48).astype(np.int8)
+            cx, mx = self.column_counts(list(map(_COL0, tups)), 0)
+            cy, my = self.column_counts(list(map(_COL1, tups)), 1)
         is1 = d == 1
         is3 = d == 3
         any1 = bool(is1.any())
@@ -787,8 +830,8 @@ class _Parser:
             self.cur_dcode is None or not isinstance(self.apdefs.get(self.cur_dcode), _ApDef)
         ):
             return False
-        px = self.bulk_coords(list(map(_COL0, tups)), self.x, 0)
-        py = self.bulk_coords(list(map(_COL1, tups)), self.y, 1)
+        px = self.axis_values(cx, mx, self.x, 0)
+        py = self.axis_values(cy, my, self.y, 1)
         prevx = np.concatenate([[self.x], px[:-1]])
         prevy = np.concatenate([[self.y], py[:-1]])
         if self.in_region:
@@ -875,11 +918,9 @@ class _Parser:
         pieces = word.split()
         w = pieces[0] if len(pieces) == 1 else "".join(pieces)
         m = _WORD.fullmatch(w)
-        if m is None or not w:
-            if m is None:
-                msg = "command must be a G, D or M code or coordinate data; got an unknown command"
-                raise self.err(msg, pos, w)
-            return
+        if m is None:
+            msg = "command must be a G, D or M code or coordinate data; got an unknown command"
+            raise self.err(msg, pos, w)
         g, xs, ys, is_, js, ds, ms = m.groups()
         has_coord = xs is not None or ys is not None or is_ is not None or js is not None
         if g is not None:
@@ -957,8 +998,9 @@ class _Parser:
             self.note(f"g-unknown-{g}", pos, f"unknown G code G{g:02d} ignored")
 
     def comment(self, text: str, pos: int) -> None:
-        if len(self.comments) < MAX_COMMENTS:
-            self.comments.append(text.strip())
+        stripped = text.strip()
+        if stripped and len(self.comments) < MAX_COMMENTS:
+            self.comments.append(stripped)
         parsed = comment_attribute(text)
         if parsed is not None:
             self.attribute(*parsed)

@@ -24,7 +24,7 @@ import os
 import re
 from typing import Literal
 
-from fluxshadow.errors import InputError, LimitError
+from fluxshadow.errors import ConfigError, InputError, LimitError
 from fluxshadow.io._gerber_attrs import scan_header
 from fluxshadow.io._gerber_geom import ARC_CHORD_TOLERANCE_MM
 from fluxshadow.io._gerber_parser import Limits, parse_text
@@ -52,7 +52,7 @@ def _check_limits(max_repeat: int, max_macro_depth: int, max_objects: int) -> Li
     ):
         if value < 1:
             msg = f"{name} must be >= 1; got {value}"
-            raise ValueError(msg)
+            raise ConfigError(msg)
     return Limits(max_repeat=max_repeat, max_macro_depth=max_macro_depth, max_objects=max_objects)
 
 
@@ -91,7 +91,9 @@ def read_gerber(
     ParseError
         A statement is malformed or unsupported (message names file and line).
     LimitError
-        A safety limit was exceeded.
+        A safety limit was exceeded (file size, copies, nesting depth, object count).
+    ConfigError
+        A limit option is below 1.
     """
     source = os.fspath(path)
     try:
@@ -138,6 +140,12 @@ def parse_gerber(
     Returns
     -------
     ArtworkRecord
+        As for :func:`read_gerber`, with ``source`` as given.
+
+    Raises
+    ------
+    ParseError, LimitError, ConfigError
+        As for :func:`read_gerber`.
     """
     size = len(text.encode("utf-8"))
     if size > max_bytes:
