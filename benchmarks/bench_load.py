@@ -10,9 +10,8 @@ from __future__ import annotations
 import sys
 import time
 
-from _common import boards, machine, peak_rss_mb
-
 import fluxshadow
+from _common import boards, machine, peak_rss_mb
 from fluxshadow.checks.run import run_checks
 
 ZONE_MARGIN_MM = 3.0
@@ -26,8 +25,10 @@ def main() -> int:
         print("no shared real boards found; nothing to measure")
         return 0
     print(f"machine: {machine()}")
-    print(f"{'board':28s} {'MB':>6s} {'layers':>6s} {'mags':>5s} {'load s':>7s} "
-          f"{'zones s':>8s} {'check s':>8s}")
+    print(
+        f"{'board':28s} {'MB':>6s} {'layers':>6s} {'mags':>5s} {'load s':>7s} "
+        f"{'zones s':>8s} {'check s':>8s}"
+    )
     for path in found:
         size = sum(f.stat().st_size for f in path.rglob("*") if f.is_file()) / 1e6
         t0 = time.perf_counter()
@@ -35,15 +36,21 @@ def main() -> int:
         t1 = time.perf_counter()
         for m in board.magnetics:
             xs, ys = m.outline[:, 0], m.outline[:, 1]
-            window = (xs.min() - ZONE_MARGIN_MM, ys.min() - ZONE_MARGIN_MM,
-                      xs.max() + ZONE_MARGIN_MM, ys.max() + ZONE_MARGIN_MM)
+            window = (
+                xs.min() - ZONE_MARGIN_MM,
+                ys.min() - ZONE_MARGIN_MM,
+                xs.max() + ZONE_MARGIN_MM,
+                ys.max() + ZONE_MARGIN_MM,
+            )
             for layer in board.layers:
                 board.split(layer, window)
         t2 = time.perf_counter()
         run_checks(board)
         t3 = time.perf_counter()
-        print(f"{path.name:28s} {size:6.1f} {len(board.layers):6d} {len(board.magnetics):5d} "
-              f"{t1 - t0:7.2f} {t2 - t1:8.2f} {t3 - t2:8.2f}")
+        print(
+            f"{path.name:28s} {size:6.1f} {len(board.layers):6d} {len(board.magnetics):5d} "
+            f"{t1 - t0:7.2f} {t2 - t1:8.2f} {t3 - t2:8.2f}"
+        )
     print(f"peak memory: {peak_rss_mb():.0f} MB (target <= 1024 MB)")
     return 0
 

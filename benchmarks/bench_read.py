@@ -9,7 +9,6 @@ import sys
 import time
 
 from _common import boards, machine, peak_rss_mb
-
 from fluxshadow.io.gerber import looks_like_gerber, read_gerber
 
 

@@ -7,9 +7,9 @@ Data goes to stdout (or ``--output``), progress and messages to stderr.
 from __future__ import annotations
 
 import os
-from dataclasses import replace
 import sys
 import tempfile
+from dataclasses import replace
 from enum import StrEnum
 from pathlib import Path
 from typing import Annotated
