@@ -103,3 +103,42 @@ def test_console_script_smoke() -> None:
     )
     assert proc.returncode == 0, proc.stderr
     assert json.loads(proc.stdout)["magnetics"][1]["ref"] == "L2"
+
+
+def test_zip_entry_escaping_the_folder_is_refused(tmp_path: Path) -> None:
+    import zipfile
+
+    archive = tmp_path / "evil.zip"
+    with zipfile.ZipFile(archive, "w") as z:
+        for f in sorted(MINI4.iterdir()):
+            z.write(f, f.name)
+        z.writestr("../outside.gbr", "G04 escape*\nM02*\n")
+    result = runner.invoke(app, ["stack", str(archive)])
+    assert result.exit_code == 2
+    assert "evil.zip" in result.stderr
+    assert "outside.gbr" in result.stderr
+    assert not (tmp_path / "outside.gbr").exists()
+
+
+def test_truncated_gerber_is_read_with_a_notice(tmp_path: Path) -> None:
+    pkg = tmp_path / "pkg"
+    shutil.copytree(MINI4, pkg)
+    f = pkg / "mini4-copper-L3-inr.gbr"
+    text = f.read_text()
+    f.write_text(text[: text.rindex("M02*")])  # the end-of-file statement is missing
+    result = runner.invoke(app, ["stack", str(pkg), "-f", "json"])
+    assert result.exit_code == 0, result.output
+    notices = json.loads(result.stdout)["notices"]
+    assert any("mini4-copper-L3-inr.gbr" in n and "M02" in n for n in notices)
+
+
+def test_unclassified_files_are_listed_not_dropped(tmp_path: Path) -> None:
+    pkg = tmp_path / "pkg"
+    shutil.copytree(MINI4, pkg)
+    (pkg / "mystery.dat").write_bytes(b"\x00\x01\x02binary")
+    (pkg / "notes.txt").write_text("ordered from the usual fab\n")
+    result = runner.invoke(app, ["stack", str(pkg), "-f", "json"])
+    assert result.exit_code == 0, result.output
+    files = {f["file"]: f["use"] for f in json.loads(result.stdout)["files"]}
+    assert "mystery.dat" in files
+    assert "notes.txt" in files
