@@ -140,13 +140,12 @@ def _assign_pads(
 
 
 def _overrides(cfg: Config) -> list[PartOverride]:
-    out = []
-    for p in cfg.parts:
-        if p.kind is not None or p.body_mm is not None or p.height_mm is not None:
-            out.append(
-                PartOverride(ref=p.ref, kind=p.kind, body_mm=p.body_mm, height_mm=p.height_mm)
-            )
-    return out
+    # Every [[part]] goes in, even one that only states physics: identify_magnetics then
+    # reports entries whose ref is not placed.
+    return [
+        PartOverride(ref=p.ref, kind=p.kind, body_mm=p.body_mm, height_mm=p.height_mm)
+        for p in cfg.parts
+    ]
 
 
 def _frame_override(cfg: Config) -> FrameOverride | None:
