@@ -90,7 +90,8 @@ def plane_void(ctx: Context, geo: MagneticGeometry) -> list[Finding]:
             else (f"{nearest:.2f} mm from the winding's projection")
         )
         msg = (
-            f"{lg.layer.name} is a plane around {m.ref} but covers {lg.coverage:.0%} of its zone: "
+            f"Layer {lg.layer.name} is a plane around {m.kind} {m.ref} but covers "
+            f"{lg.coverage:.0%} of its zone: "
             f"{len(lg.voids)} void(s), {lg.void_area_mm2:.1f} mm² without plane copper; the "
             f"nearest void {where}."
         )
@@ -131,15 +132,16 @@ def void_ring(ctx: Context, geo: MagneticGeometry) -> list[Finding]:
             p = v.polygon.representative_point()
             if ring.closed:
                 msg = (
-                    f"The copper of {lg.layer.name} closes a ring around a {v.area_mm2:.1f} mm² "
-                    f"void under {m.ref} (hole {ring.inner_area_mm2:.1f} mm², inner perimeter "
+                    f"The copper of layer {lg.layer.name} closes a ring around a "
+                    f"{v.area_mm2:.1f} mm² void under {m.kind} {m.ref} (hole "
+                    f"{ring.inner_area_mm2:.1f} mm², inner perimeter "
                     f"{ring.inner_perimeter_mm:.1f} mm): it carries eddy current around the void."
                 )
                 severity = None
             else:
                 msg = (
-                    f"The void of {v.area_mm2:.1f} mm² on {lg.layer.name} under {m.ref} opens "
-                    f"to the {ring.opened_to}: no ring current circulates around it."
+                    f"The void of {v.area_mm2:.1f} mm² on layer {lg.layer.name} under {m.kind} "
+                    f"{m.ref} opens to the {ring.opened_to}: no ring current circulates around it."
                 )
                 severity = "note" if ctx.settings.severity.get("void-ring") != "off" else "off"
             f = _finding(
@@ -221,7 +223,7 @@ def through_cutout(ctx: Context, geo: MagneticGeometry) -> list[Finding]:
     kinds = sorted({k for k, _ in pieces})
     p = total.representative_point()
     msg = (
-        f"Board material is removed under {m.ref}: {', '.join(kinds)}; "
+        f"Board material is removed under {m.kind} {m.ref}: {', '.join(kinds)}; "
         f"{total.area:.1f} mm² of its body zone."
     )
     f = _finding(
@@ -249,12 +251,14 @@ def exposed_trace(ctx: Context, geo: MagneticGeometry) -> list[Finding]:
         for e in lg.exposed:
             net = e.net or "unnamed net"
             ret = (
-                f"its nearest return plane is {e.return_layer} ({e.return_distance_mm:.2f} mm away)"
+                f"its nearest return plane is layer {e.return_layer} "
+                f"({e.return_distance_mm:.2f} mm away)"
                 if e.return_layer
                 else "no plane under it serves as a return"
             )
             msg = (
-                f"{net} on {lg.layer.name} runs {e.exposed_length_mm:.1f} mm under {m.ref} "
+                f"Track {net} on layer {lg.layer.name} runs {e.exposed_length_mm:.1f} mm under "
+                f"{m.kind} {m.ref} "
                 f"with no plane between it and the part; {ret}."
             )
             f = _finding(
