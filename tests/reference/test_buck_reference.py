@@ -51,3 +51,29 @@ def test_harmonics_against_fft(duty: float) -> None:
     np.testing.assert_allclose(
         triangle_harmonics_a(ripple, duty, orders), spec[orders], rtol=1e-6, atol=1e-9
     )
+
+
+def test_harmonic_slope_peak_first_harmonic_is_omega_i1() -> None:
+    """Derived: the first harmonic of the slope has amplitude ω I₁ (row 19's I₁)."""
+    from fluxshadow.physics.buck import harmonic_slope_peak_a_per_s, triangle_harmonics_a
+
+    d, di, f = 0.275, 1.0875, 1e6  # physics reference row 18 example
+    expected = 2 * np.pi * f * float(triangle_harmonics_a(di, d, 1))
+    assert harmonic_slope_peak_a_per_s(di, d, f, 1) == pytest.approx(expected, rel=1e-6)
+
+
+def test_harmonic_slope_peak_tends_to_the_gibbs_overshoot() -> None:
+    """Many harmonics: the partial Fourier sum of the rectangular slope overshoots its
+    larger level by the Wilbraham-Gibbs fraction (Si(pi)/pi - 1/2 = 0.0895) of the jump
+    (standard Fourier analysis, e.g. Hewitt & Hewitt, Arch. Hist. Exact Sci. 21 (1979))."""
+    from scipy.special import sici
+
+    from fluxshadow.physics.buck import harmonic_slope_peak_a_per_s
+
+    d, di, f = 0.275, 1.0875, 1e6
+    rise, fall = di * f / d, -di * f / (1 - d)  # rows 18: +3.95455, -1.5 A/us
+    gibbs = sici(np.pi)[0] / np.pi - 0.5
+    expected = rise + gibbs * (rise - fall)
+    assert harmonic_slope_peak_a_per_s(di, d, f, 2001, samples=65536) == pytest.approx(
+        expected, rel=0.01
+    )

@@ -15,6 +15,7 @@ __all__ = [
     "buck_duty",
     "buck_ripple_a",
     "buck_slopes_a_per_s",
+    "harmonic_slope_peak_a_per_s",
     "triangle_harmonics_a",
 ]
 
@@ -136,3 +137,57 @@ def triangle_harmonics_a(ripple_a: ArrayLike, duty: ArrayLike, order: ArrayLike)
     return np.asarray(
         di * np.abs(np.sin(n * np.pi * d)) / (n * n * np.pi**2 * d * (1.0 - d)), dtype=np.float64
     )
+
+
+def harmonic_slope_peak_a_per_s(
+    ripple_a: float, duty: float, freq_hz: float, max_order: int, *, samples: int = 4096
+) -> float:
+    """Peak |dI/dt| of the triangle ripple kept to its first ``max_order`` harmonics.
+
+    The slope of a triangle wave is a rectangular wave (ΔI/(D T) during the rise,
+    −ΔI/((1 − D) T) during the fall); its Fourier series truncated at ``max_order`` is
+    evaluated over one period and the largest magnitude returned. Harmonic n of the slope
+    has amplitude n ω Iₙ with Iₙ from :func:`triangle_harmonics_a`, so the EMF a mutual
+    inductance M sees from these harmonics peaks at M times this value.
+
+    Parameters
+    ----------
+    ripple_a : float
+        Peak-to-peak ripple ΔI (A).
+    duty : float
+        Rise fraction D, 0 < D < 1.
+    freq_hz : float
+        Switching frequency (Hz).
+    max_order : int
+        Highest harmonic kept (>= 1).
+    samples : int
+        Samples over one period (the rectangular wave is sampled, then filtered exactly
+        in the frequency domain).
+
+    Returns
+    -------
+    float
+        Peak slope (A/s).
+
+    References
+    ----------
+    Derived: Fourier series of the rectangular slope waveform (fluxshadow physics
+    reference rows 18-19); with ``max_order = 1`` the result is ω I₁ exactly.
+    """
+    period_s = 1.0 / freq_hz
+    rise = ripple_a / (duty * period_s)
+    fall = -ripple_a / ((1.0 - duty) * period_s)
+    # Average each sample cell over the rectangular wave so the edge cell is exact.
+    edge = duty * samples
+    k = np.arange(samples)
+    frac_rise = np.clip(edge - k, 0.0, 1.0)
+    slope = frac_rise * rise + (1.0 - frac_rise) * fall
+    spectrum = np.fft.rfft(slope)
+    spectrum[0] = 0.0
+    spectrum[max_order + 1 :] = 0.0
+    # Undo the cell averaging (a sinc per harmonic) so the kept harmonics are exact.
+    n = np.arange(len(spectrum))
+    cell = np.sinc(n / samples)
+    spectrum[1:] = spectrum[1:] / cell[1:]
+    fine = np.fft.irfft(spectrum, n=samples * 8) * 8
+    return float(np.max(np.abs(fine)))
