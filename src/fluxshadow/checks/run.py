@@ -151,6 +151,8 @@ def run_checks(
         settings = settings_from_config(cfg.thresholds, cfg.severity, source=cfg.source)
     ctx = Context(board=board, settings=settings)
     extent = board_extent(board)
+    if extent.geom_type == "Polygon":
+        extent = shapely.Polygon(extent.exterior)  # a part over a cut-out is still on the board
     findings: list[Finding] = []
     notices = [str(n) for n in board.notices]
     geos: list[MagneticGeometry] = []

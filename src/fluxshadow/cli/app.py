@@ -213,6 +213,40 @@ def demo(
         raise typer.Exit(code=1)
 
 
+@app.command()
+def compare(
+    package: PackageArg,
+    fill: Annotated[
+        list[str] | None,
+        typer.Option("--fill", help="REF:LAYER - fill the part's zone on LAYER with plane copper."),
+    ] = None,
+    cut: Annotated[
+        list[str] | None,
+        typer.Option(
+            "--cut",
+            help="REF:LAYER - clear the part's zone on LAYER; REF:through mills under the part.",
+        ),
+    ] = None,
+    fmt: FormatOpt = Format.text,
+    config: ConfigOpt = None,
+    output: OutputOpt = None,
+) -> None:
+    """Check the board as built and with a void filled or cut; show every figure that changes."""
+    from fluxshadow.checks.compare import compare as run_compare
+    from fluxshadow.checks.compare import parse_edit
+    from fluxshadow.report.compare_report import comparison_to_json, comparison_to_text
+
+    try:
+        edits = [parse_edit(t, "fill") for t in fill or []]
+        edits += [parse_edit(t, "cut") for t in cut or []]
+        board = _load(package, config)
+        result = run_compare(board, edits)
+        text = comparison_to_json(result) if fmt is Format.json else comparison_to_text(result)
+        _emit(text, output)
+    except (FluxshadowError, OSError) as exc:
+        raise _fail(exc) from None
+
+
 def _version(value: bool) -> None:
     if value:
         typer.echo(f"fluxshadow {__version__}")
