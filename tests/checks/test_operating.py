@@ -71,3 +71,8 @@ def test_missing_inductance_is_an_error_naming_the_key() -> None:
     cfg = parse_config("[[regulator]]\nparts = ['L1']\nvin_v = 12\nvout_v = 3.3\nfsw_hz = 1e6\n")
     with pytest.raises(ConfigError, match=r"regulator\[1\]\.inductance_h"):
         operating_points([_mag("L1", None)], cfg)
+
+
+def test_regulator_without_electrical_values_is_not_an_operating_point() -> None:
+    cfg = parse_config("[[regulator]]\nparts = ['L1']\nswitch_net = 'SW_A'\n")
+    assert not operating_points([_mag("L1", 2.2e-6)], cfg)["L1"].stated

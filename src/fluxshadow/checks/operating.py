@@ -117,6 +117,8 @@ def operating_points(
         mags = [by_ref[r] for r in reg.parts if r in by_ref]
         if not mags:
             continue
+        if reg.vin_v is None and reg.vout_v is None and reg.fsw_hz is None:
+            continue  # the entry states only switch-node details, no operating point
         if reg.vin_v is None or reg.vout_v is None or reg.fsw_hz is None:
             missing = [k for k in ("vin_v", "vout_v", "fsw_hz") if getattr(reg, k) is None]
             msg = f"{p}.{missing[0]} must be given for the magnetics {reg.parts}; got nothing"
