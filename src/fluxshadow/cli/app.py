@@ -9,10 +9,11 @@ from __future__ import annotations
 import os
 import sys
 import tempfile
+from collections.abc import Callable
 from dataclasses import replace
 from enum import StrEnum
 from pathlib import Path
-from typing import Annotated
+from typing import Annotated, Any
 
 import typer
 from rich.console import Console
@@ -100,6 +101,21 @@ def _emit(text: str, output: Path | None) -> None:
         raise
 
 
+def _inventory(
+    package: Path,
+    config: Path | None,
+    output: Path | None,
+    fmt: Format,
+    summarize: Callable[[Board], dict[str, Any]],
+    as_text: Callable[[dict[str, Any]], str],
+) -> None:
+    try:
+        summary = summarize(_load(package, config))
+        _emit(to_json(summary) if fmt is Format.json else as_text(summary), output)
+    except (FluxshadowError, OSError) as exc:
+        raise _fail(exc) from None
+
+
 @app.command()
 def stack(
     package: PackageArg,
@@ -108,13 +124,7 @@ def stack(
     output: OutputOpt = None,
 ) -> None:
     """List the copper layers top to bottom: identity, polarity, area, stack-up."""
-    try:
-        board = _load(package, config)
-        summary = stack_summary(board)
-        text = to_json(summary) if fmt is Format.json else stack_text(summary)
-        _emit(text, output)
-    except (FluxshadowError, OSError) as exc:
-        raise _fail(exc) from None
+    _inventory(package, config, output, fmt, stack_summary, stack_text)
 
 
 @app.command()
@@ -125,13 +135,7 @@ def parts(
     output: OutputOpt = None,
 ) -> None:
     """List the power magnetics found and excluded, and the placement frame fit."""
-    try:
-        board = _load(package, config)
-        summary = parts_summary(board)
-        text = to_json(summary) if fmt is Format.json else parts_text(summary)
-        _emit(text, output)
-    except (FluxshadowError, OSError) as exc:
-        raise _fail(exc) from None
+    _inventory(package, config, output, fmt, parts_summary, parts_text)
 
 
 FailOpt = Annotated[
