@@ -1,4 +1,6 @@
 # Two set-up commands (see README): `make demo` and `make test`.
+# Tests pin OpenBLAS to one thread: on a small shared machine its default threads make the
+# dense solves of the sheet solver many times slower (measured).
 PYTHON ?= python3
 VENV ?= .venv
 PY := $(VENV)/bin/python
@@ -16,7 +18,7 @@ demo: $(STAMP)
 	$(VENV)/bin/fluxshadow demo
 
 test: $(STAMP)
-	$(PY) -m pytest -q
+	OPENBLAS_NUM_THREADS=1 $(PY) -m pytest -q
 	$(VENV)/bin/ruff check src tests benchmarks
 	$(VENV)/bin/mypy
 

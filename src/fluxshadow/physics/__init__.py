@@ -25,6 +25,11 @@ buck
     Buck-stage duty, ripple, current slopes and ripple harmonics.
 capacitance
     Pad-to-plane capacitance (parallel plate, Palmer, microstrip), CV²f loss, C dV/dt.
+mesh
+    Graded triangle meshes of plane copper (polygons with holes) for the sheet solver.
+sheet
+    Thin-sheet eddy-current solver on a triangle mesh: stream function, one ring-current
+    unknown per enclosed hole, several planes coupled, frequency sweeps from one reduction.
 
 Every formula's source is named in its function's ``References`` section, with the label
 the fluxshadow physics reference gives it (verified / exists / from memory / derived).
