@@ -248,3 +248,42 @@ def test_find_config(tmp_path: Path) -> None:
     archive = tmp_path / "boards" / "pkg.zip"
     archive.write_bytes(b"PK\x05\x06" + bytes(18))
     assert find_config(archive) == beside
+
+
+# ----------------------------------------------------------------------------- switch node
+
+
+def test_regulator_switch_node_keys() -> None:
+    text = (
+        "[[regulator]]\nparts = ['L1']\nswitch_net = ' SW_3V3 '\ncoss_f = 450e-12\n"
+        "edge_time_s = 4e-9\n"
+    )
+    (reg,) = parse_config(text).regulators
+    assert reg.switch_net == "SW_3V3"
+    assert reg.coss_f == pytest.approx(450e-12)
+    assert reg.edge_time_s == pytest.approx(4e-9)
+    # All optional: a regulator without them leaves them unset.
+    (plain,) = parse_config("[[regulator]]\nparts = ['L1']\n").regulators
+    assert (plain.switch_net, plain.coss_f, plain.edge_time_s) == (None, None, None)
+
+
+@pytest.mark.parametrize(
+    ("line", "message"),
+    [
+        ("switch_net = ''", "regulator[1].switch_net must be a non-empty string; got ''"),
+        ("switch_net = 3", "regulator[1].switch_net must be a non-empty string; got 3"),
+        ("coss_f = -1e-9", "regulator[1].coss_f must be a positive number; got -1e-09"),
+        ("coss_f = 'big'", "regulator[1].coss_f must be a positive number"),
+        # A value in pF or nF instead of F is caught by the plausible range.
+        ("coss_f = 500", "regulator[1].coss_f must be in farads, between 1e-13 and 1e-06; got 500"),
+        ("coss_f = 1e-15", "regulator[1].coss_f must be in farads"),
+        ("edge_time_s = 0", "regulator[1].edge_time_s must be a positive number; got 0"),
+        ("edge_time_s = 5", "regulator[1].edge_time_s must be in seconds, between 1e-11 and"),
+        ("coss = 1e-9", "regulator[1] keys must be among parts, vin_v"),
+    ],
+)
+def test_regulator_switch_node_key_errors(line: str, message: str) -> None:
+    with pytest.raises(ConfigError) as err:
+        parse_config(f"[[regulator]]\nparts = ['L1']\n{line}\n", source="cfg.toml")
+    assert message in str(err.value)
+    assert str(err.value).startswith("cfg.toml: ")

@@ -11,6 +11,7 @@ from collections.abc import Sequence
 from dataclasses import dataclass, field
 
 import numpy as np
+import numpy.typing as npt
 import shapely
 from shapely.geometry.base import BaseGeometry
 
@@ -109,15 +110,57 @@ def winding_radius_mm(magnetic: Magnetic, settings: Settings) -> float:
     return settings.winding_radius_fraction * min(magnetic.body_mm)
 
 
+_STRAY_GAP_MM = 2.0
+"""Copper-free gap that sets a cluster of copper objects apart from the rest (mm)."""
+
+_STRAY_SHARE = 0.01
+"""Clusters beyond such a gap with fewer than this share of all objects are not the board."""
+
+
+def _main_span(lo: npt.NDArray[np.float64], hi: npt.NDArray[np.float64]) -> tuple[float, float]:
+    """Span along one axis of the object intervals, without small stray clusters (mm).
+
+    The intervals ``[lo, hi]`` are grouped into clusters separated by more than
+    ``_STRAY_GAP_MM`` of empty axis; clusters holding fewer than ``_STRAY_SHARE`` of all
+    objects (panel fiducials and tooling marks drawn outside the board) are left out,
+    unless no cluster is large enough, when the largest one is kept.
+    """
+    order = np.argsort(lo, kind="stable")
+    lo, hi = lo[order], hi[order]
+    reach = np.maximum.accumulate(hi)
+    breaks = np.flatnonzero(lo[1:] > reach[:-1] + _STRAY_GAP_MM) + 1
+    starts = np.concatenate(([0], breaks))
+    ends = np.concatenate((breaks, [len(lo)]))
+    counts = ends - starts
+    keep = counts >= _STRAY_SHARE * len(lo)
+    if not keep.any():
+        keep = counts == counts.max()
+    return float(lo[starts[keep]].min()), float(reach[ends[keep] - 1].max())
+
+
 def board_extent(board: Board) -> BaseGeometry:
-    """The board's shape (mm): outline polygon with cut-outs, else the copper extent."""
+    """The board's shape (mm): outline polygon with cut-outs, else the copper extent.
+
+    Without an outline the extent is the bounding box of the copper objects of every
+    layer, leaving out small clusters of objects that stand more than 2 mm apart from the
+    rest along an axis (fiducials and tooling marks of a fabrication panel, which would
+    otherwise stretch the "board" far beyond its edge and count the margin as missing
+    copper).
+    """
     if board.outline is not None:
         return board.outline.board
-    boxes = [a.bounds for a in board.artworks if a.bounds is not None]
+    boxes = [a.object_bounds for a in board.artworks if a.n_objects > 0]
+    boxes += [
+        np.asarray([a.plane_extent.bounds], dtype=np.float64)
+        for a in board.artworks
+        if a.negative and not a.plane_extent.is_empty
+    ]
     if not boxes:
         return shapely.Polygon()
-    b = np.array(boxes)
-    return shapely.box(b[:, 0].min(), b[:, 1].min(), b[:, 2].max(), b[:, 3].max())
+    b = np.concatenate(boxes)
+    x0, x1 = _main_span(b[:, 0], b[:, 2])
+    y0, y1 = _main_span(b[:, 1], b[:, 3])
+    return shapely.box(x0, y0, x1, y1)
 
 
 def _parts(geom: BaseGeometry) -> list[BaseGeometry]:
@@ -199,10 +242,14 @@ def trace_void(
                 search_window_mm=size,
             )
         if not at_window:
+            # The ring's hole is everything inside the copper-free region's outer edge:
+            # islands of copper within it (traces, pads of other nets) are not part of the
+            # ring and do not shorten the path of its current.
+            hole = shapely.Polygon(region.exterior)
             return RingInfo(
                 closed=True,
-                inner_perimeter_mm=perimeter,
-                inner_area_mm2=area,
+                inner_perimeter_mm=float(region.exterior.length),
+                inner_area_mm2=float(hole.area),
                 search_window_mm=size,
             )
         if 0.5 * size >= max_half_mm:
@@ -237,6 +284,54 @@ def _track_lines(
     return out
 
 
+@dataclass(frozen=True, kw_only=True)
+class _Landings:
+    """Plated holes standing in a clearance of the shadow, with that clearance (mm)."""
+
+    points: npt.NDArray[np.object_]
+    radius_mm: npt.NDArray[np.float64]
+    discs: npt.NDArray[np.object_]
+
+
+def _via_landings(
+    board: Board, geo: MagneticGeometry, shadow: BaseGeometry, settings: Settings
+) -> _Landings | None:
+    """The clearances (antipads) of the plated holes in the shadow, as discs (mm).
+
+    A plated hole (a via or a pin) passes through the planes above a deeper layer in a
+    clearance of its own, so a trace that lands on it ends inside an opening of the
+    shadow. For each plated hole in the window that is not under shadow copper the disc
+    out to the nearest shadow copper is its clearance, when that disc is no larger than
+    ``void_min_area_mm2`` (radius ``sqrt(void_min_area_mm2 / pi)``; an antipad is
+    0.3-0.8 mm^2, docs/rules.md); a hole standing in a larger opening has none.
+    """
+    if shadow.is_empty:
+        return None
+    x0, y0, x1, y1 = geo.window
+    xy_parts, r_parts = [], []
+    for d in board.drills:
+        if len(d.hole_xy):
+            xy, dia = d.hole_xy, d.hole_diameter_mm
+            sel = d.hole_plated & (xy[:, 0] >= x0) & (xy[:, 0] <= x1)
+            sel &= (xy[:, 1] >= y0) & (xy[:, 1] <= y1)
+            xy_parts.append(xy[sel])
+            r_parts.append(0.5 * dia[sel])
+    if not xy_parts or sum(len(x) for x in xy_parts) == 0:
+        return None
+    points = shapely.points(np.concatenate(xy_parts))
+    hole_r = np.concatenate(r_parts)
+    reach = shapely.distance(points, shapely.boundary(shadow))
+    r_max = float(np.sqrt(settings.void_min_area_mm2 / np.pi))
+    ok = ~shapely.intersects(shadow, points) & (reach > 0) & (reach <= r_max)
+    if not ok.any():
+        return None
+    return _Landings(
+        points=points[ok],
+        radius_mm=hole_r[ok],
+        discs=shapely.buffer(points[ok], reach[ok], quad_segs=16),
+    )
+
+
 def _exposed_traces(
     board: Board,
     geo: MagneticGeometry,
@@ -255,6 +350,7 @@ def _exposed_traces(
     # Only drawn tracks count as traces: pads and regions narrower than the opening are
     # copper too, but not conductors running under the part.
     lines = _track_lines(board, lg.layer, geo.window)
+    landings = _via_landings(board, geo, shadow, settings)
     out: list[ExposedTrace] = []
     for net, segs in sorted(lines.items()):
         centre = shapely.union_all(segs)
@@ -262,6 +358,12 @@ def _exposed_traces(
         if inside.length <= 0:
             continue
         exposed = shapely.intersection(inside, open_area)
+        if landings is not None and not exposed.is_empty:
+            # Where the trace lands on a plated hole it runs inside that hole's own
+            # clearance: the via, not a conductor under the part (docs/rules.md).
+            lands = shapely.dwithin(landings.points, centre, landings.radius_mm + _EPS_MM)
+            if lands.any():
+                exposed = shapely.difference(exposed, shapely.union_all(landings.discs[lands]))
         length = float(exposed.length)
         if length < settings.exposed_min_length_mm:
             continue

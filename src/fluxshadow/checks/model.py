@@ -87,7 +87,13 @@ class RingInfo:
 
 @dataclass(frozen=True, kw_only=True)
 class LayerResult:
-    """What lies under (or over, for bottom parts) one magnetic on one copper layer."""
+    """What lies under (or over, for bottom parts) one magnetic on one copper layer.
+
+    ``figures`` holds the physics figures of the layer with unit-suffixed keys
+    (``shielding_db``, ``delta_l_nh``, ``delta_l_pct``, ``freq_hz``; with the sheet model
+    also ``ring_current_a``, ``moment_ratio``) and ``model`` / ``figures_per`` saying how
+    they were computed; empty when no figures were computed.
+    """
 
     layer: str
     depth_mm: float
@@ -99,6 +105,7 @@ class LayerResult:
     trace_area_mm2: float
     ring: RingInfo | None
     shielded_by: str = ""
+    figures: Mapping[str, Metric] = field(default_factory=dict)
 
 
 @dataclass(frozen=True, kw_only=True)

@@ -19,6 +19,7 @@ from fluxshadow.board.model import Board
 from fluxshadow.checks.analysis import MagneticGeometry
 from fluxshadow.checks.model import Finding, Severity
 from fluxshadow.checks.settings import Settings
+from fluxshadow.checks.switch_node import switch_node_capacitance
 
 __all__ = ["RULES", "Context", "Rule"]
 
@@ -296,6 +297,11 @@ RULES: dict[str, Rule] = {
             id="through-cutout", summary=(through_cutout.__doc__ or "").strip(), run=through_cutout
         ),
         Rule(id="exposed-trace", summary=(exposed_trace.__doc__ or "").strip(), run=exposed_trace),
+        Rule(
+            id="switch-node-capacitance",
+            summary=(switch_node_capacitance.__doc__ or "").strip(),
+            run=switch_node_capacitance,
+        ),
     )
 }
 """The geometry rules in report order (``assumption`` findings are made by the runner)."""

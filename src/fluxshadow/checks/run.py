@@ -9,6 +9,12 @@ import shapely
 from fluxshadow import __version__
 from fluxshadow.board.model import Board
 from fluxshadow.checks.analysis import MagneticGeometry, analyse_magnetic, board_extent
+from fluxshadow.checks.figures import (
+    MagneticFigures,
+    apply_figures,
+    magnetic_figures,
+    stated_severities,
+)
 from fluxshadow.checks.model import (
     SEVERITY_RANK,
     Finding,
@@ -17,8 +23,10 @@ from fluxshadow.checks.model import (
     MagneticResult,
     Report,
 )
+from fluxshadow.checks.operating import operating_points
 from fluxshadow.checks.rules import ASSUMPTION_SUMMARY, RULES, Context
 from fluxshadow.checks.settings import RULE_IDS, Settings, settings_from_config
+from fluxshadow.checks.source import SourceModel, source_model
 from fluxshadow.errors import ConfigError
 
 __all__ = ["run_checks"]
@@ -33,7 +41,7 @@ def _coords(geom: shapely.Geometry) -> tuple[tuple[float, float], ...]:
     return tuple((round(float(x), 4), round(float(y), 4)) for x, y in poly.exterior.coords)
 
 
-def _result(geo: MagneticGeometry) -> MagneticResult:
+def _result(geo: MagneticGeometry, figs: MagneticFigures | None = None) -> MagneticResult:
     m = geo.magnetic
     layers = []
     for lg in geo.layers:
@@ -49,6 +57,7 @@ def _result(geo: MagneticGeometry) -> MagneticResult:
                 trace_area_mm2=round(lg.trace_area_mm2, 3),
                 ring=lg.voids[0].ring if lg.voids else None,
                 shielded_by=lg.shielded_by,
+                figures=dict(figs.layers.get(lg.layer.name, {})) if figs else {},
             )
         )
     return MagneticResult(
@@ -97,24 +106,15 @@ def _waive(findings: list[Finding], board: Board) -> tuple[list[Finding], list[s
     return out, notes
 
 
-def _assumptions(board: Board, geos: list[MagneticGeometry], settings: Settings) -> list[str]:
+def _assumptions(
+    board: Board, geos: list[MagneticGeometry], sources: dict[str, SourceModel]
+) -> list[str]:
     out = list(board.assumptions)
-    parts = {p.ref: p for p in board.config.parts}
     in_regulator = {r for reg in board.config.regulators for r in reg.parts}
     for geo in geos:
         m = geo.magnetic
-        p = parts.get(m.ref)
-        if p is None or p.winding_radius_mm is None:
-            out.append(
-                f"{m.ref}: winding mean radius {geo.winding_radius_mm:.2f} mm assumed "
-                f"({settings.winding_radius_fraction:g} x the body's smaller side); state it as "
-                f'[[part]] ref = "{m.ref}", winding_radius_mm = ...'
-            )
-        if p is None or p.construction is None:
-            out.append(
-                f"{m.ref}: construction not stated (shielded, semi-shielded, unshielded, "
-                f'toroidal, air-core); state it as [[part]] ref = "{m.ref}", construction = ...'
-            )
+        # construction, winding radius, heights, axis and turns: the source model's
+        out.extend(sources[m.ref].assumptions)
         if m.ref not in in_regulator:
             out.append(
                 f"{m.ref}: no operating point; figures will be given per A/us of current slope. "
@@ -157,6 +157,9 @@ def run_checks(
     notices = [str(n) for n in board.notices]
     geos: list[MagneticGeometry] = []
     results: list[MagneticResult] = []
+    sources: dict[str, SourceModel] = {}
+    ops = operating_points(board.magnetics, cfg)
+    stated = stated_severities(settings, cfg.severity)
     total = len(board.magnetics)
     for n, m in enumerate(board.magnetics, start=1):
         if not extent.is_empty and not extent.buffer(0.5).contains(shapely.Point(m.x_mm, m.y_mm)):
@@ -172,14 +175,21 @@ def run_checks(
             board, m, settings, radius_mm=part.winding_radius_mm if part else None
         )
         geos.append(geo)
-        results.append(_result(geo))
+        op = ops[m.ref]
+        src = source_model(m, part, settings, inductance_h=op.inductance_h)
+        sources[m.ref] = src
+        figs = magnetic_figures(geo, src, op, settings)
+        notices.extend(figs.notes)
+        results.append(_result(geo, figs))
         if not any(lg.copper_coverage > 0 for lg in geo.layers):
             notices.append(f"{m.ref}: no copper at all under the part on any layer")
+        made: list[Finding] = []
         for rule in RULES.values():
-            findings.extend(rule.run(ctx, geo))
+            made.extend(rule.run(ctx, geo))
+        findings.extend(apply_figures(made, figs, settings, stated=stated))
         if progress:
             progress(n, total, m.ref)
-    assumptions = _assumptions(board, geos, settings)
+    assumptions = _assumptions(board, geos, sources)
     level = settings.severity.get("assumption", "note")
     if level != "off":
         for text in assumptions:

@@ -10,13 +10,21 @@ from fluxshadow.errors import ConfigError
 
 __all__ = ["DEFAULT_SEVERITY", "RULE_IDS", "Settings", "settings_from_config"]
 
-RULE_IDS = ("plane-void", "void-ring", "through-cutout", "exposed-trace", "assumption")
+RULE_IDS = (
+    "plane-void",
+    "void-ring",
+    "through-cutout",
+    "exposed-trace",
+    "switch-node-capacitance",
+    "assumption",
+)
 
 DEFAULT_SEVERITY: dict[str, str] = {
     "plane-void": "warning",
     "void-ring": "warning",
     "through-cutout": "warning",
     "exposed-trace": "warning",
+    "switch-node-capacitance": "warning",
     "assumption": "note",
 }
 
@@ -45,6 +53,16 @@ class Settings:
         Largest window half-size tried when tracing a void's topology.
     winding_radius_fraction : float
         Default winding mean radius as a fraction of the body's smaller side.
+    switch_node_ratio_warning : float
+        Switch-node capacitance as a fraction of the switch's output capacitance above
+        which ``switch-node-capacitance`` is a warning (below: a note).
+    induced_mv_warning, induced_mv_error : float
+        Peak voltage induced in an exposed trace (mV, or mV per A/us without an
+        operating point) at which ``exposed-trace`` becomes a warning / an error; below
+        the warning level it is a note.
+    delta_l_pct_warning, delta_l_pct_error : float
+        A closed ring's share of the part's inductance change (% of its value) at which
+        ``void-ring`` becomes a warning / an error; below it a note.
     severity : mapping of str to str
         Rule id -> ``error``, ``warning``, ``note`` or ``off``.
     """
@@ -58,10 +76,15 @@ class Settings:
     opening_mm: float = 0.5
     ring_search_max_mm: float = 40.0
     winding_radius_fraction: float = 0.35
+    switch_node_ratio_warning: float = 0.1
+    induced_mv_warning: float = 10.0
+    induced_mv_error: float = 50.0
+    delta_l_pct_warning: float = 5.0
+    delta_l_pct_error: float = 20.0
     severity: Mapping[str, str] = field(default_factory=lambda: dict(DEFAULT_SEVERITY))
 
 
-_FRACTIONS = {"plane_around_fraction", "winding_radius_fraction"}
+_FRACTIONS = {"plane_around_fraction", "winding_radius_fraction", "switch_node_ratio_warning"}
 
 
 def settings_from_config(

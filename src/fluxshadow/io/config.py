@@ -36,6 +36,9 @@ Example::
     vin_v = 12
     vout_v = 3.3
     fsw_hz = 700e3
+    switch_net = "SW_3V3"
+    coss_f = 450e-12
+    edge_time_s = 4e-9
 
     [severity]
     plane-void = "warning"
@@ -158,7 +161,12 @@ class PartConfig:
 
 @dataclass(frozen=True, kw_only=True)
 class RegulatorConfig:
-    """One ``[[regulator]]``: the operating point of a converter (SI units)."""
+    """One ``[[regulator]]``: the operating point of a converter (SI units).
+
+    ``switch_net`` names the switch-node net (as in the copper files' net attributes);
+    ``coss_f`` is the switches' output capacitance (F) and ``edge_time_s`` the switch-node
+    edge time (s), both used by the ``switch-node-capacitance`` rule.
+    """
 
     parts: tuple[str, ...]
     vin_v: float | None = None
@@ -166,6 +174,9 @@ class RegulatorConfig:
     fsw_hz: float | None = None
     inductance_h: float | None = None
     ripple_a: float | None = None
+    switch_net: str | None = None
+    coss_f: float | None = None
+    edge_time_s: float | None = None
 
 
 @dataclass(frozen=True, kw_only=True)
@@ -326,7 +337,21 @@ _PART_KEYS = (
     "winding_bottom_mm",
     "winding_height_mm",
 )
-_REGULATOR_KEYS = ("parts", "vin_v", "vout_v", "fsw_hz", "inductance_h", "ripple_a")
+_REGULATOR_KEYS = (
+    "parts",
+    "vin_v",
+    "vout_v",
+    "fsw_hz",
+    "inductance_h",
+    "ripple_a",
+    "switch_net",
+    "coss_f",
+    "edge_time_s",
+)
+_COSS_RANGE_F = (1e-13, 1e-6)
+"""Plausible switch output capacitances (F): a value outside is most likely in pF or nF."""
+_EDGE_RANGE_S = (1e-11, 1e-5)
+"""Plausible switch-node edge times (s): a value outside is most likely in ns."""
 _WAIVER_KEYS = ("rule", "ref", "layer", "reason")
 
 
@@ -490,6 +515,15 @@ def _regulators(c: _Checker, value: object) -> tuple[RegulatorConfig, ...]:
         def pos(key: str, p: str = p, t: dict[str, object] = t) -> float | None:
             return c.number(t[key], f"{p}.{key}", positive=True) if key in t else None
 
+        def within(key: str, bounds: tuple[float, float], unit: str, p: str = p) -> float | None:
+            v = pos(key)
+            if v is not None and not bounds[0] <= v <= bounds[1]:
+                raise c.fail(
+                    f"{p}.{key} must be in {unit}, between {bounds[0]:g} and {bounds[1]:g}; "
+                    f"got {v:g}"
+                )
+            return v
+
         out.append(
             RegulatorConfig(
                 parts=parts,
@@ -498,6 +532,11 @@ def _regulators(c: _Checker, value: object) -> tuple[RegulatorConfig, ...]:
                 fsw_hz=pos("fsw_hz"),
                 inductance_h=pos("inductance_h"),
                 ripple_a=pos("ripple_a"),
+                switch_net=(
+                    c.text(t["switch_net"], f"{p}.switch_net") if "switch_net" in t else None
+                ),
+                coss_f=within("coss_f", _COSS_RANGE_F, "farads"),
+                edge_time_s=within("edge_time_s", _EDGE_RANGE_S, "seconds"),
             )
         )
     return tuple(out)

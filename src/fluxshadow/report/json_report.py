@@ -81,6 +81,7 @@ def report_to_dict(report: Report) -> dict[str, Any]:
                         "trace_area_mm2": lr.trace_area_mm2,
                         "ring": _ring(lr.ring),
                         "shielded_by": [s for s in lr.shielded_by.split(",") if s],
+                        "figures": {k: _clean(v) for k, v in lr.figures.items()},
                     }
                     for lr in m.layers
                 ],

@@ -14,7 +14,7 @@ from rich.panel import Panel
 from rich.table import Table
 from rich.text import Text
 
-from fluxshadow.checks.model import Finding, MagneticResult, Report
+from fluxshadow.checks.model import Finding, LayerResult, MagneticResult, Report
 from fluxshadow.report.inventory import CAUTION
 
 __all__ = ["report_to_text"]
@@ -49,9 +49,28 @@ def _strip(cov: float, copper: float) -> Text:
     return t
 
 
+def _figures(lr: LayerResult) -> Text:
+    """The layer's physics figures in a few words ("SE 24 dB, dL -3.1 nH")."""
+    f = lr.figures
+    se, dl = f.get("shielding_db"), f.get("delta_l_nh")
+    if not f.get("planes") and f.get("model") != "sheet":
+        return Text("")
+    parts = []
+    if isinstance(se, int | float):
+        parts.append(f"SE {se:.0f} dB")
+    if isinstance(dl, int | float):
+        parts.append(f"dL {dl:+.3g} nH")
+    ring = f.get("ring_current_a")
+    if isinstance(ring, int | float) and ring > 0:
+        parts.append(f"ring {ring * 1e3:.3g} mA")
+    if f.get("model") == "sheet":
+        parts.append("sheet")
+    return Text(", ".join(parts), style="dim")
+
+
 def _panel(m: MagneticResult, findings: list[Finding]) -> Panel:
     layers = Table.grid(padding=(0, 1))
-    for _ in range(5):
+    for _ in range(6):
         layers.add_column()
     for lr in m.layers:
         what = "plane around" if lr.plane_around else "no plane around"
@@ -64,6 +83,7 @@ def _panel(m: MagneticResult, findings: list[Finding]) -> Panel:
             Text(f"{lr.coverage:6.1%} plane", style=STYLE["plane"] if lr.coverage > 0.99 else ""),
             Text(f"{what}; void {lr.void_area_mm2:.1f} mm²" if lr.plane_around else what),
             Text(ring, style=STYLE["void"] if ring == "closed ring" else ""),
+            _figures(lr),
         )
     body: list[object] = [layers]
     if findings:

@@ -38,9 +38,14 @@ demo test checks that each one is reported and that this list equals ``DEMO_FIND
 - ``plane-void`` L4 L2: the 0.5 mm pull-back around the slot, 12 mm^2;
 - ``void-ring`` L4 L2: closed around the slot;
 - ``plane-void`` L4 L3: the same pull-back in the VIN_12V plane;
-- ``void-ring`` L4 L3: closed around the slot.
+- ``void-ring`` L4 L3: closed around the slot;
+- ``switch-node-capacitance`` L1 L1: the SW_3V3 track and pad over the L2 plane;
+- ``switch-node-capacitance`` L2 L1: SW_5V;
+- ``switch-node-capacitance`` L3 L1: SW_1V8;
+- ``switch-node-capacitance`` L4 L1: SW_12V.
 
-L1 gives no geometry finding, only assumptions (its winding radius is not configured).
+Apart from its switch-node capacitance, L1 gives no finding but assumptions (its winding
+radius is not configured).
 """
 
 from __future__ import annotations
@@ -73,6 +78,10 @@ DEMO_FINDINGS: frozenset[tuple[str, str, str]] = frozenset(
         ("plane-void", "L4", "L3"),
         ("void-ring", "L4", "L2"),
         ("void-ring", "L4", "L3"),
+        ("switch-node-capacitance", "L1", "L1"),
+        ("switch-node-capacitance", "L2", "L1"),
+        ("switch-node-capacitance", "L3", "L1"),
+        ("switch-node-capacitance", "L4", "L1"),
     }
 )
 """The (rule, ref, layer) findings listed in the module docstring."""
@@ -107,8 +116,8 @@ _C1206 = _two_pad(3.0, 1.2, 1.8)
 # Vias: net -> positions (mm). Signal vias get antipads in the planes they cross.
 _SIGNAL_VIAS: dict[str, tuple[Point, ...]] = {
     "SENSE_3V3": ((3.0, 32.0), (18.0, 32.0)),
-    "ADC_IN_P": ((36.0, 25.0), (30.0, 42.0)),
-    "SENSE_1V8": ((50.0, 27.0), (50.0, 41.0)),
+    "ADC_IN_P": ((36.0, 25.0), (30.7, 42.0)),
+    "SENSE_1V8": ((50.5, 27.0), (50.5, 41.0)),
 }
 _GND_VIAS: tuple[Point, ...] = ((22.0, 18.0), (22.0, 28.0), (2.0, 40.0), (38.0, 40.0))
 _MOUNTING_HOLES: tuple[Point, ...] = ((3.0, 3.0), (57.0, 42.0))
@@ -290,12 +299,12 @@ def _top() -> tuple[Feature, ...]:
         Track(((48.5, 33.5), (44.0, 37.0), (44.0, 38.05)), 0.6, net="VOUT_1V8"),
         # Signal ends: sensor connector to the ADC_IN_P via, ADC to its other via, the
         # sense vias to the regulators' feedback pins.
-        Track(((17.25, 42.0), (30.0, 42.0)), 0.2, net="ADC_IN_P"),
+        Track(((17.25, 42.0), (30.7, 42.0)), 0.2, net="ADC_IN_P"),
         Track(((36.0, 25.0), (39.05, 25.0), (39.05, 25.9)), 0.2, net="ADC_IN_P"),
         Track(((3.0, 32.0), (3.0, 26.0), (9.05, 26.0), (9.05, 24.1)), 0.2, net="SENSE_3V3"),
         Track(((18.0, 32.0), (18.0, 36.0), (12.0, 36.0)), 0.2, net="SENSE_3V3"),
-        Track(((50.0, 27.0), (49.05, 26.0), (49.05, 24.1)), 0.2, net="SENSE_1V8"),
-        Track(((50.0, 41.0), (45.0, 41.0), (44.0, 40.0), (44.0, 39.95)), 0.2, net="SENSE_1V8"),
+        Track(((50.5, 27.0), (49.05, 26.0), (49.05, 24.1)), 0.2, net="SENSE_1V8"),
+        Track(((50.5, 41.0), (45.0, 41.0), (44.0, 40.0), (44.0, 39.95)), 0.2, net="SENSE_1V8"),
         *via_pads,
     )
 
@@ -321,9 +330,10 @@ def _inner3() -> tuple[Feature, ...]:
         Region(_rect(*_L3_PLANE), net="VIN_12V"),
         Region(_rect(*_SLOT_PULL_BACK), dark=False),
         *antipads,
-        # SENSE_3V3 under L1 (shielded by L2); ADC_IN_P under L2 (exposed in its keep-out).
+        # SENSE_3V3 under L1 (shielded by L2); ADC_IN_P under L2 (exposed in its keep-out),
+        # 0.7 mm off the winding axis (a track right under the axis links no net flux).
         Track(((3.0, 32.0), (18.0, 32.0)), 0.2, net="SENSE_3V3"),
-        Track(((36.0, 25.0), (30.0, 25.0), (30.0, 42.0)), 0.2, net="ADC_IN_P"),
+        Track(((36.0, 25.0), (30.7, 25.0), (30.7, 42.0)), 0.2, net="ADC_IN_P"),
         *via_pads,
     )
 
@@ -333,8 +343,8 @@ def _bottom() -> tuple[Feature, ...]:
     return (
         Region(_rect(*_L4_POUR), net="GND"),
         *antipads,
-        # SENSE_1V8 under L3 (exposed in the keep-out of L2).
-        Track(((50.0, 27.0), (50.0, 41.0)), 0.2, net="SENSE_1V8"),
+        # SENSE_1V8 under L3 (exposed in the keep-out of L2), 0.5 mm off its axis.
+        Track(((50.5, 27.0), (50.5, 41.0)), 0.2, net="SENSE_1V8"),
         *via_pads,
     )
 
