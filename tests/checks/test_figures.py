@@ -413,8 +413,9 @@ def test_demo_figures_at_the_operating_points(demo_report: Report) -> None:
     l2 = {lr.layer: lr.figures for m in demo_report.magnetics if m.ref == "L2" for lr in m.layers}
     assert l2["L2"]["freq_hz"] == 600e3  # regulator[3] of the demo config
     assert l2["L2"]["model"] == MODEL_SHEET
-    # the solid GND plane of L4 shields the field far more than L2 with its keep-out
-    assert l2["L4"]["shielding_db"] > 20.0 > l2["L2"]["shielding_db"]
+    # the solid GND plane of L4 shields the field far more than L2 with its keep-out (which
+    # is not counted as a solid slab for the layers below it)
+    assert l2["L4"]["shielding_db"] > l2["L2"]["shielding_db"] + 10.0
     data = report_to_dict(demo_report)
     jsonschema.validate(data, SCHEMA)
     assert data["magnetics"][0]["layers"][1]["figures"]

@@ -63,7 +63,7 @@ def test_json_has_the_design_fields(report: Report) -> None:
 
 
 def test_text_view_shows_every_part_and_the_caution(report: Report) -> None:
-    text = report_to_text(report)
+    text = report_to_text(report, width=200)
     assert "L1 inductor 4.7uH" in text
     assert "L2 inductor 2.2uH" in text
     assert "closed ring" in text

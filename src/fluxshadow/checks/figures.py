@@ -648,8 +648,12 @@ def magnetic_figures(
     shares: list[float] = []
     cum_prev = 0.0
     plane_names: list[str] = []
+    # A plane with a void in the zone does not count as a solid slab for the layers below
+    # it (conservative: the void sits under the winding); its own figures come from the
+    # sheet model.
+    solid = [lg.plane_around and not lg.voids for lg in geo.layers]
     for k in range(len(geo.layers)):
-        stack = layer_stack(geo.layers, k)
+        stack = layer_stack(geo.layers, k, planes=solid)
         ses.append(shielding_below_db(source, stack, freq))
         cum = delta_l_h(source, stack, freq)
         shares.append(cum - cum_prev)

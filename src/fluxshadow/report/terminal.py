@@ -29,7 +29,7 @@ STYLE = {
     "void": "#d1495b",
     "trace": "#edae49",
 }
-_BAR = 24
+_BAR = 16
 
 
 def _badge(f: Finding) -> Text:
@@ -70,19 +70,26 @@ def _figures(lr: LayerResult) -> Text:
 
 def _panel(m: MagneticResult, findings: list[Finding]) -> Panel:
     layers = Table.grid(padding=(0, 1))
-    for _ in range(6):
-        layers.add_column()
+    layers.add_column(no_wrap=True)
+    layers.add_column(no_wrap=True, width=_BAR)
+    layers.add_column(no_wrap=True, justify="right")
+    layers.add_column(overflow="fold", ratio=1)
+    layers.add_column(overflow="fold", ratio=1)
     for lr in m.layers:
-        what = "plane around" if lr.plane_around else "no plane around"
-        ring = ""
+        state = Text("plane around" if lr.plane_around else "no plane around")
+        if lr.plane_around and lr.void_area_mm2 > 0:
+            state.append(f", void {lr.void_area_mm2:.1f} mm²")
         if lr.ring is not None:
-            ring = "closed ring" if lr.ring.closed else f"opened to {lr.ring.opened_to}"
+            closed = lr.ring.closed
+            state.append(
+                ", closed ring" if closed else f", opened to {lr.ring.opened_to}",
+                style=STYLE["void"] if closed else "",
+            )
         layers.add_row(
             Text(f"{lr.layer} ({lr.depth_mm:.2f} mm)", style="bold"),
             _strip(lr.coverage, lr.copper_coverage),
-            Text(f"{lr.coverage:6.1%} plane", style=STYLE["plane"] if lr.coverage > 0.99 else ""),
-            Text(f"{what}; void {lr.void_area_mm2:.1f} mm²" if lr.plane_around else what),
-            Text(ring, style=STYLE["void"] if ring == "closed ring" else ""),
+            Text(f"{lr.coverage:.1%}", style=STYLE["plane"] if lr.coverage > 0.99 else ""),
+            state,
             _figures(lr),
         )
     body: list[object] = [layers]
