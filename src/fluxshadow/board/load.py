@@ -15,6 +15,7 @@ import os
 from collections.abc import Callable, Sequence
 from dataclasses import replace
 from pathlib import Path
+from typing import Any
 
 import numpy as np
 import numpy.typing as npt
@@ -47,7 +48,7 @@ from fluxshadow.io.records import (
     PlacementRow,
 )
 
-__all__ = ["load_package"]
+__all__ = ["load_package", "with_config_limits"]
 
 Progress = Callable[[str], None]
 
@@ -200,7 +201,9 @@ def load_package(
         A parsed configuration or the path of a ``fluxshadow.toml``. Default: a
         ``fluxshadow.toml`` found beside or inside the package, else none.
     limits : Limits
-        Safety limits on archives and file sizes.
+        Safety limits on archives, file sizes and what one file may expand to; the
+        ``[limits]`` table of the configuration overrides single fields (a configuration
+        found only inside an archive applies to the files, not to unpacking it).
     progress : callable, optional
         Called with a short message before each stage (for a progress display).
 
@@ -216,9 +219,13 @@ def load_package(
     ConfigError
         The configuration is invalid.
     """
+    early = _early_config(path, config)
+    if early is not None:
+        config = early
+        limits = with_config_limits(limits, early)
     with open_package(path, limits=limits) as pkg:
         try:
-            return _load(pkg, config, progress)
+            return _load(pkg, config, progress, limits)
         except FluxshadowError as exc:
             if Path(pkg.root) == Path(pkg.display_root):
                 raise
@@ -229,12 +236,53 @@ def load_package(
             raise InputError(text) from exc
 
 
+def with_config_limits(limits: Limits, cfg: Config) -> Limits:
+    """``limits`` with the fields given in the configuration's ``[limits]`` table."""
+    if not cfg.limits:
+        return limits
+    values: dict[str, Any] = {
+        k: (float(v) if k == "max_ratio" else int(v)) for k, v in cfg.limits.items()
+    }
+    return replace(limits, **values)
+
+
+def _early_config(
+    path: str | os.PathLike[str], config: Config | str | os.PathLike[str] | None
+) -> Config | None:
+    """The configuration when it is known before the package is opened (for its limits)."""
+    if isinstance(config, Config):
+        return config
+    if config is not None:
+        return load_config(Path(config))
+    p = Path(path)
+    if not p.is_dir():
+        return None  # an archive's own configuration is found after unpacking
+    found = find_config(p)
+    return load_config(found) if found is not None else None
+
+
 def _load(
-    pkg: PackageFiles, config: Config | str | os.PathLike[str] | None, progress: Progress | None
+    pkg: PackageFiles,
+    config: Config | str | os.PathLike[str] | None,
+    progress: Progress | None,
+    limits: Limits = DEFAULT_LIMITS,
 ) -> Board:
     say = progress or (lambda _msg: None)
     root = Path(pkg.root)
     cfg = _resolve_config(config, root)
+    limits = with_config_limits(limits, cfg)
+
+    def gerber(rel: str) -> ArtworkRecord:
+        return read_gerber(
+            root / rel,
+            max_bytes=limits.max_file_bytes,
+            max_repeat=limits.max_repeat,
+            max_macro_depth=limits.max_macro_depth,
+            max_objects=limits.max_objects,
+            max_vertices=limits.max_vertices,
+            max_region_vertices=limits.max_region_vertices,
+        )
+
     notices: list[Notice] = list(pkg.notices)
     assumptions: list[str] = []
     uses: dict[str, str] = {}
@@ -272,21 +320,21 @@ def _load(
     records: list[ArtworkRecord] = []
     for ident in copper_ids:
         say(f"reading {ident.file}")
-        rec = read_gerber(root / ident.file)
+        rec = gerber(ident.file)
         records.append(rec)
         notices.extend(rec.notices)
     outline: BoardOutline | None = None
     paste: dict[str, list[ArtworkRecord]] = {"top": [], "bottom": []}
     for ident in idents:
         if ident.function == "outline" and outline is None:
-            rec = read_gerber(root / ident.file)
+            rec = gerber(ident.file)
             notices.extend(rec.notices)
             outline = outline_from_artwork(rec)
             uses[ident.file] = (
                 "gerber: board outline" if outline else "gerber: outline (no closed shape)"
             )
         elif ident.function == "paste" and ident.side in ("top", "bottom"):
-            rec = read_gerber(root / ident.file)
+            rec = gerber(ident.file)
             paste[ident.side].append(rec)
             uses[ident.file] = f"gerber: paste {ident.side} (frame registration)"
     if outline is None:
@@ -299,7 +347,9 @@ def _load(
     drills: list[DrillRecord] = []
     for rel in by_kind.get(FileKind.EXCELLON, []):
         say(f"reading {rel}")
-        d = read_excellon(root / rel)
+        d = read_excellon(
+            root / rel, max_bytes=limits.max_file_bytes, max_features=limits.max_drill_features
+        )
         drills.append(d)
         notices.extend(d.notices)
         span = f" layers {d.span[0]}-{d.span[1]}" if d.span else ""
@@ -316,7 +366,7 @@ def _load(
             uses[rel] = "job file (a second one; not used)"
     tables: list[tuple[str, list[PlacementRow]]] = []
     for rel in by_kind.get(FileKind.PLACEMENT, []):
-        rows, pn = read_placement(root / rel)
+        rows, pn = read_placement(root / rel, max_bytes=limits.max_file_bytes)
         notices.extend(pn)
         tables.append((rel, rows))
     placement, used_tables, pn2 = _pick_placement(tables)
@@ -329,7 +379,7 @@ def _load(
         )
     bom_rows: list[BomRow] = []
     for rel in by_kind.get(FileKind.BOM, []):
-        rows_b, bn = read_bom(root / rel)
+        rows_b, bn = read_bom(root / rel, max_bytes=limits.max_file_bytes)
         notices.extend(bn)
         bom_rows.extend(rows_b)
         uses[rel] = f"BOM: {len(rows_b)} designators"

@@ -137,7 +137,11 @@ class InputFile:
 
 @dataclass(frozen=True, kw_only=True)
 class Report:
-    """The result of ``fluxshadow check``: findings, per-magnetic results, provenance."""
+    """The result of ``fluxshadow check``: findings, per-magnetic results, provenance.
+
+    ``layer_files`` maps each copper layer name (``"L2"``) to its Gerber file, a path
+    relative to the package as in ``inputs`` (empty when unknown).
+    """
 
     package: str
     tool_version: str
@@ -149,6 +153,7 @@ class Report:
     layers: tuple[str, ...]
     rules: Mapping[str, str]
     config: str = ""
+    layer_files: Mapping[str, str] = field(default_factory=dict)
 
     def worst(self, *, include_waived: bool = False) -> str | None:
         """The worst severity among findings (waived ones skipped unless asked)."""

@@ -3,16 +3,18 @@
 Each ``[[regulator]]`` of the configuration names the parts it drives (its magnetic among
 them) and states Vin, Vout, fsw and optionally the inductance and the ripple. Without an
 operating point the figures are given per A/us of current slope and the report says so.
+A regulator whose numbers make no sense does not stop the check: its magnetics get the
+per-A/us reference and the problem is returned for the report (:class:`OperatingProblem`).
 """
 
 from __future__ import annotations
 
 import math
+from collections.abc import Iterator, Mapping, Sequence
 from dataclasses import dataclass
 
 from fluxshadow.board.magnetics import Magnetic
-from fluxshadow.errors import ConfigError
-from fluxshadow.io.config import Config
+from fluxshadow.io.config import Config, RegulatorConfig
 from fluxshadow.physics.buck import (
     buck_duty,
     buck_ripple_a,
@@ -26,6 +28,8 @@ __all__ = [
     "PER_A_PER_US",
     "REFERENCE_FREQ_HZ",
     "OperatingPoint",
+    "OperatingPoints",
+    "OperatingProblem",
     "operating_points",
 ]
 
@@ -96,22 +100,115 @@ def _reference(ref: str) -> OperatingPoint:
     )
 
 
+@dataclass(frozen=True, kw_only=True)
+class OperatingProblem:
+    """A ``[[regulator]]`` value that makes no sense, and what was done about it.
+
+    Attributes
+    ----------
+    message : str
+        The problem, naming the file and the key, e.g. ``"fluxshadow.toml:
+        regulator[1].vout_v must be below vin_v for a buck stage; got 12 V >= 5 V"``.
+    refs : tuple of str
+        The magnetics it concerns.
+    consequence : str
+        What their figures are instead, for the report: given per A/us (the usual case),
+        or, for a part named by two regulators, the first regulator's.
+    """
+
+    message: str
+    refs: tuple[str, ...]
+    consequence: str
+
+    @property
+    def text(self) -> str:
+        """The message with its consequence, as the report shows it."""
+        return f"{self.message}; {self.consequence}" if self.consequence else self.message
+
+
+@dataclass(frozen=True)
+class OperatingPoints(Mapping[str, OperatingPoint]):
+    """The operating point of every magnetic (by designator) and the problems met.
+
+    A read-only mapping ``ref -> OperatingPoint``; ``problems`` lists every regulator
+    value that made no sense (each magnetic it concerns has the per-A/us reference).
+    """
+
+    points: Mapping[str, OperatingPoint]
+    problems: tuple[OperatingProblem, ...] = ()
+
+    def __getitem__(self, ref: str) -> OperatingPoint:
+        return self.points[ref]
+
+    def __iter__(self) -> Iterator[str]:
+        return iter(self.points)
+
+    def __len__(self) -> int:
+        return len(self.points)
+
+
+def _per_us(refs: Sequence[str]) -> str:
+    if not refs:  # every part of the regulator already has another regulator's point
+        return ""
+    return f"figures for {', '.join(refs)} are given per A/us instead"
+
+
+def _regulator_problems(reg: RegulatorConfig, p: str) -> list[str]:
+    """What makes no sense in one regulator's electrical values (empty when all do)."""
+    out: list[str] = []
+    stated = {"vin_v": reg.vin_v, "vout_v": reg.vout_v, "fsw_hz": reg.fsw_hz}
+    missing = [k for k, v in stated.items() if v is None]
+    if missing:
+        out.append(
+            f"{p}.{missing[0]} must be given with "
+            f"{' and '.join(k for k in stated if k != missing[0])}; got nothing"
+        )
+    units = {"vin_v": "voltage (V)", "vout_v": "voltage (V)"}
+    for key, unit in units.items():
+        v = stated[key]
+        if v is not None and not v > 0:
+            out.append(f"{p}.{key} must be a positive {unit}; got {v:g} V")
+    vin, vout, fsw = reg.vin_v, reg.vout_v, reg.fsw_hz
+    if vin is not None and vout is not None and vin > 0 and vout > 0 and not vout < vin:
+        out.append(f"{p}.vout_v must be below vin_v for a buck stage; got {vout:g} V >= {vin:g} V")
+    lo, hi = _FSW_RANGE_HZ
+    if fsw is not None and not lo <= fsw <= hi:
+        out.append(f"{p}.fsw_hz must lie between {lo:g} and {hi:g} Hz; got {fsw:g}")
+    if reg.inductance_h is not None and not reg.inductance_h > 0:
+        out.append(f"{p}.inductance_h must be a positive inductance (H); got {reg.inductance_h:g}")
+    if reg.ripple_a is not None and not reg.ripple_a > 0:
+        out.append(f"{p}.ripple_a must be a positive current (A); got {reg.ripple_a:g}")
+    return out
+
+
 def operating_points(
     magnetics: tuple[Magnetic, ...] | list[Magnetic], config: Config
-) -> dict[str, OperatingPoint]:
+) -> OperatingPoints:
     """The operating point of every magnetic (stated or the per-A/us reference).
 
-    Raises
-    ------
-    ConfigError
-        A regulator whose numbers make no sense for a buck stage (Vout >= Vin, a switching
-        frequency outside 1 kHz - 100 MHz, no inductance and no part value, a ripple that
-        is not positive), or a part named by two regulators.
+    Nothing here raises on the regulator's numbers: a regulator whose numbers make no
+    sense for a buck stage (a missing Vin, Vout or fsw; a value that is not positive;
+    Vout >= Vin; a switching frequency outside 1 kHz - 100 MHz; no inductance and no part
+    value; a ripple that is not positive) leaves its magnetics at the per-A/us reference
+    and is listed in ``problems``, each message naming the file and the key. A part named
+    by two regulators keeps the first one's point (also listed).
+
+    Parameters
+    ----------
+    magnetics : sequence of Magnetic
+    config : Config
+        Its ``regulators`` (validated for types only, see :mod:`fluxshadow.io.config`).
+
+    Returns
+    -------
+    OperatingPoints
+        ``ref -> OperatingPoint`` for every magnetic, and the problems.
     """
     out = {m.ref: _reference(m.ref) for m in magnetics}
     by_ref = {m.ref: m for m in magnetics}
     where = f"{config.source}: " if config.source else ""
     claimed: dict[str, int] = {}
+    problems: list[OperatingProblem] = []
     for i, reg in enumerate(config.regulators, start=1):
         p = f"{where}regulator[{i}]"
         mags = [by_ref[r] for r in reg.parts if r in by_ref]
@@ -119,52 +216,70 @@ def operating_points(
             continue
         if reg.vin_v is None and reg.vout_v is None and reg.fsw_hz is None:
             continue  # the entry states only switch-node details, no operating point
-        if reg.vin_v is None or reg.vout_v is None or reg.fsw_hz is None:
-            missing = [k for k in ("vin_v", "vout_v", "fsw_hz") if getattr(reg, k) is None]
-            msg = f"{p}.{missing[0]} must be given for the magnetics {reg.parts}; got nothing"
-            raise ConfigError(msg)
-        if not reg.vout_v < reg.vin_v:
-            msg = (
-                f"{p}.vout_v must be below vin_v for a buck stage; "
-                f"got {reg.vout_v} V >= {reg.vin_v} V"
+        bad = _regulator_problems(reg, p)
+        if bad:
+            refs = tuple(m.ref for m in mags if m.ref not in claimed)
+            problems.extend(
+                OperatingProblem(message=b, refs=refs, consequence=_per_us(refs)) for b in bad
             )
-            raise ConfigError(msg)
-        lo, hi = _FSW_RANGE_HZ
-        if not lo <= reg.fsw_hz <= hi:
-            msg = f"{p}.fsw_hz must lie between {lo:g} and {hi:g} Hz; got {reg.fsw_hz:g}"
-            raise ConfigError(msg)
+            for r in refs:
+                claimed[r] = i
+            continue
+        vin, vout, fsw = reg.vin_v, reg.vout_v, reg.fsw_hz
+        if vin is None or vout is None or fsw is None:  # listed among the problems above
+            continue
         for m in mags:
             if m.ref in claimed:
-                msg = f"{p}.parts names {m.ref}, which regulator[{claimed[m.ref]}] names too"
-                raise ConfigError(msg)
+                problems.append(
+                    OperatingProblem(
+                        message=(
+                            f"{p}.parts must not name a part another regulator names; got "
+                            f"{m.ref}, which regulator[{claimed[m.ref]}] names too"
+                        ),
+                        refs=(m.ref,),
+                        consequence=(
+                            f"{m.ref} keeps the operating point of regulator[{claimed[m.ref]}]"
+                        ),
+                    )
+                )
+                continue
             claimed[m.ref] = i
             ind = reg.inductance_h if reg.inductance_h is not None else m.value_h
             if ind is None or not ind > 0:
-                msg = (
-                    f"{p}.inductance_h must be given: {m.ref} has no inductance value in the "
-                    "placement or BOM; got nothing"
+                problems.append(
+                    OperatingProblem(
+                        message=(
+                            f"{p}.inductance_h must be given: {m.ref} has no inductance value "
+                            "in the placement or BOM; got nothing"
+                        ),
+                        refs=(m.ref,),
+                        consequence=_per_us((m.ref,)),
+                    )
                 )
-                raise ConfigError(msg)
-            duty = float(buck_duty(reg.vin_v, reg.vout_v))
+                continue
+            duty = float(buck_duty(vin, vout))
             ripple = (
                 float(reg.ripple_a)
                 if reg.ripple_a is not None
-                else float(buck_ripple_a(reg.vin_v, reg.vout_v, ind, reg.fsw_hz))
+                else float(buck_ripple_a(vin, vout, ind, fsw))
             )
             if not (ripple > 0 and math.isfinite(ripple)):
-                msg = f"{p}.ripple_a must be a positive current; got {ripple!r}"
-                raise ConfigError(msg)
-            rise, fall = buck_slopes_a_per_s(reg.vin_v, reg.vout_v, ind)
+                problems.append(
+                    OperatingProblem(
+                        message=f"{p}.ripple_a must be a positive current (A); got {ripple!r}",
+                        refs=(m.ref,),
+                        consequence=_per_us((m.ref,)),
+                    )
+                )
+                continue
+            rise, fall = buck_slopes_a_per_s(vin, vout, ind)
             out[m.ref] = OperatingPoint(
                 ref=m.ref,
                 stated=True,
-                source=(
-                    f"regulator[{i}] ({reg.vin_v:g} V -> {reg.vout_v:g} V, "
-                    f"{reg.fsw_hz / 1e3:g} kHz)"
-                ),
-                vin_v=reg.vin_v,
-                vout_v=reg.vout_v,
-                fsw_hz=reg.fsw_hz,
+                source=(f"regulator[{i}] ({vin:g} V -> {vout:g} V, {fsw / 1e3:g} kHz)"),
+                vin_v=vin,
+                vout_v=vout,
+                fsw_hz=fsw,
                 inductance_h=ind,
                 duty=duty,
                 ripple_a=ripple,
@@ -173,8 +288,6 @@ def operating_points(
                 harmonics_a=tuple(
                     float(triangle_harmonics_a(ripple, duty, n)) for n in range(1, MAX_HARMONIC + 1)
                 ),
-                slope_peak_a_per_s=harmonic_slope_peak_a_per_s(
-                    ripple, duty, reg.fsw_hz, MAX_HARMONIC
-                ),
+                slope_peak_a_per_s=harmonic_slope_peak_a_per_s(ripple, duty, fsw, MAX_HARMONIC),
             )
-    return out
+    return OperatingPoints(points=out, problems=tuple(problems))

@@ -26,7 +26,7 @@ from fluxshadow.checks.model import (
 from fluxshadow.checks.operating import operating_points
 from fluxshadow.checks.rules import ASSUMPTION_SUMMARY, RULES, Context
 from fluxshadow.checks.settings import RULE_IDS, Settings, settings_from_config
-from fluxshadow.checks.source import SourceModel, source_model
+from fluxshadow.checks.source import SourceModel, checked_part, source_model
 from fluxshadow.errors import ConfigError
 
 __all__ = ["run_checks"]
@@ -123,6 +123,27 @@ def _assumptions(
     return out
 
 
+def _problem_findings(problems: list[tuple[str, str]], level: str) -> list[Finding]:
+    """Stated values that made no sense, as ``assumption`` warnings (errors when the
+    ``assumption`` rule is raised to error; none when it is off)."""
+    if level == "off":
+        return []
+    severity = "error" if level == "error" else "warning"
+    return [
+        Finding(
+            rule="assumption",
+            severity=severity,  # type: ignore[arg-type]
+            ref=ref,
+            layer="",
+            x_mm=None,
+            y_mm=None,
+            message=text,
+            metrics={"what": text.split(";", 1)[0], "problem": True},
+        )
+        for ref, text in problems
+    ]
+
+
 def run_checks(
     board: Board,
     *,
@@ -159,6 +180,10 @@ def run_checks(
     results: list[MagneticResult] = []
     sources: dict[str, SourceModel] = {}
     ops = operating_points(board.magnetics, cfg)
+    # values that make no sense: (ref, message) each, reported as warnings and notices
+    problems: list[tuple[str, str]] = [
+        (ref, pr.text) for pr in ops.problems for ref in (pr.refs or ("",))
+    ]
     stated = stated_severities(settings, cfg.severity)
     total = len(board.magnetics)
     for n, m in enumerate(board.magnetics, start=1):
@@ -170,14 +195,19 @@ def run_checks(
             if progress:
                 progress(n, total, m.ref)
             continue
-        part = next((p for p in cfg.parts if p.ref == m.ref), None)
+        index = next((i for i, p in enumerate(cfg.parts, start=1) if p.ref == m.ref), 0)
+        part = cfg.parts[index - 1] if index else None
+        key = f"{cfg.source}: part[{index}]" if cfg.source else f"part[{index}]"
+        # stated winding values that make no sense for the part fall back to the defaults
+        part, part_problems = checked_part(m, part, key=key)
         geo = analyse_magnetic(
             board, m, settings, radius_mm=part.winding_radius_mm if part else None
         )
         geos.append(geo)
         op = ops[m.ref]
-        src = source_model(m, part, settings, inductance_h=op.inductance_h)
+        src = source_model(m, part, settings, inductance_h=op.inductance_h, key=key)
         sources[m.ref] = src
+        problems.extend((m.ref, text) for text in part_problems)
         figs = magnetic_figures(geo, src, op, settings)
         notices.extend(figs.notes)
         results.append(_result(geo, figs))
@@ -191,6 +221,8 @@ def run_checks(
             progress(n, total, m.ref)
     assumptions = _assumptions(board, geos, sources)
     level = settings.severity.get("assumption", "note")
+    findings.extend(_problem_findings(problems, level))
+    notices.extend(dict.fromkeys(f"{ref}: {text}" if ref else text for ref, text in problems))
     if level != "off":
         for text in assumptions:
             ref = (
@@ -238,4 +270,5 @@ def run_checks(
         layers=tuple(lay.name for lay in board.layers),
         rules=rules,
         config=cfg.source,
+        layer_files={lay.name: lay.source for lay in board.layers},
     )

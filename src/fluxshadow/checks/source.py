@@ -43,8 +43,8 @@ from __future__ import annotations
 
 import math
 import re
-from dataclasses import dataclass
-from typing import Literal
+from dataclasses import dataclass, replace
+from typing import Any, Literal
 
 import numpy as np
 import numpy.typing as npt
@@ -60,6 +60,7 @@ __all__ = [
     "K_EXT",
     "MU_EFF",
     "SourceModel",
+    "checked_part",
     "construction_from_text",
     "estimate_turns",
     "source_model",
@@ -155,6 +156,9 @@ class SourceModel:
         lumped turns times k_ext (a toroid: one turn).
     assumptions : tuple of str
         Every default used, each with how to state it in ``fluxshadow.toml``.
+    problems : tuple of str
+        Stated values that made no sense for the part (each naming its key), replaced by
+        the defaults (see :func:`checked_part`).
     """
 
     ref: str
@@ -176,6 +180,7 @@ class SourceModel:
     radius_m: FloatArray
     current_per_a: FloatArray
     assumptions: tuple[str, ...] = ()
+    problems: tuple[str, ...] = ()
 
     @classmethod
     def from_loops(
@@ -333,12 +338,112 @@ def _body_angle_deg(m: Magnetic) -> float:
     return float(m.rotation_deg)
 
 
+_FIT_SLACK_MM = 1e-6
+"""Rounding slack when a stated winding is compared with the body (mm)."""
+
+
+def _mm(v: float) -> str:
+    return f"{v:.4g} mm"
+
+
+def checked_part(
+    magnetic: Magnetic, part: PartConfig | None, *, key: str | None = None
+) -> tuple[PartConfig | None, tuple[str, ...]]:
+    """The part's stated winding values that make sense for its body; the others dropped.
+
+    The configuration accepts any finite number for ``turns``, ``winding_radius_mm``,
+    ``winding_bottom_mm`` and ``winding_height_mm``; here each is checked against the
+    part: turns and the radius and height must be positive, the bottom not negative; the
+    radius at most half the body's longer side; the bottom below the body height and, for
+    a vertical axis, bottom + height at most the body height (only when the height is
+    known: stated or from the package); a horizontal winding's length at most the body's
+    longer side. A value that fails is set to ``None`` (the default is used instead) and
+    a message naming its key is returned.
+
+    Parameters
+    ----------
+    magnetic : Magnetic
+        The part (its body, mm).
+    part : PartConfig or None
+        Its ``[[part]]`` entry.
+    key : str, optional
+        How messages name the entry, e.g. ``"fluxshadow.toml: part[2]"``; default
+        ``[[part]] ref = "L2"``.
+
+    Returns
+    -------
+    part : PartConfig or None
+        ``part`` with the failing values removed (``None`` stays ``None``).
+    problems : tuple of str
+        One message per removed value: ``"<key>.<name> must be <expectation>; got
+        <value>; the default is used instead"``.
+    """
+    if part is None:
+        return None, ()
+    k = key if key is not None else f'[[part]] ref = "{magnetic.ref}"'
+    ref = magnetic.ref
+    out: list[str] = []
+    drop: dict[str, Any] = {}
+    tail = "; the default is used instead"
+
+    def bad(name: str, expectation: str, got: str) -> None:
+        out.append(f"{k}.{name} must be {expectation} for {ref}; got {got}{tail}")
+        drop[name] = None
+
+    if part.turns is not None and not part.turns > 0:
+        bad("turns", "a positive number of turns", f"{part.turns:g}")
+    long_side = float(max(magnetic.body_mm))
+    r = part.winding_radius_mm
+    if r is not None:
+        if not r > 0:
+            bad("winding_radius_mm", "a positive radius", _mm(r))
+        elif r > 0.5 * long_side + _FIT_SLACK_MM:
+            bad(
+                "winding_radius_mm",
+                f"at most half the body's longer side ({_mm(0.5 * long_side)})",
+                _mm(r),
+            )
+    body_h = part.height_mm if part.height_mm is not None else magnetic.height_mm
+    bottom = part.winding_bottom_mm
+    if bottom is not None:
+        if bottom < 0:
+            bad("winding_bottom_mm", "a height >= 0 above the copper", _mm(bottom))
+            bottom = None
+        elif body_h is not None and bottom >= body_h:
+            bad("winding_bottom_mm", f"below the body height ({_mm(body_h)})", _mm(bottom))
+            bottom = None
+    length = part.winding_height_mm
+    if length is not None:
+        if not length > 0:
+            bad("winding_height_mm", "a positive length", _mm(length))
+        elif part.axis == "horizontal":
+            if length > long_side + _FIT_SLACK_MM:
+                bad(
+                    "winding_height_mm",
+                    f"at most the body's longer side ({_mm(long_side)}) for a horizontal winding",
+                    _mm(length),
+                )
+        elif body_h is not None:
+            low = bottom if bottom is not None else _BOTTOM_FRACTION * body_h
+            if low + length > body_h + _FIT_SLACK_MM:
+                how = "winding_bottom_mm" if bottom is not None else "the default bottom"
+                bad(
+                    "winding_height_mm",
+                    f"at most the body height ({_mm(body_h)}) less {how} ({_mm(low)})",
+                    _mm(length),
+                )
+    if not drop:
+        return part, ()
+    return replace(part, **drop), tuple(out)
+
+
 def source_model(
     magnetic: Magnetic,
     part: PartConfig | None,
     settings: Settings,
     *,
     inductance_h: float | None = None,
+    key: str | None = None,
 ) -> SourceModel:
     """Build the source model of a magnetic from the config and the defaults.
 
@@ -352,15 +457,19 @@ def source_model(
         For the default winding radius (``winding_radius_fraction``).
     inductance_h : float, optional
         Inductance used to estimate the turns (H); default the part's value.
+    key : str, optional
+        How messages name the ``[[part]]`` entry (see :func:`checked_part`).
 
     Returns
     -------
     SourceModel
-        With every default listed in ``assumptions``.
+        With every default listed in ``assumptions`` and every stated value that made
+        no sense (replaced by its default) in ``problems``.
     """
     ref = magnetic.ref
     how = f'[[part]] ref = "{ref}", '
     notes: list[str] = []
+    part, problems = checked_part(magnetic, part, key=key)
     cfg = part if part is not None else PartConfig(ref=ref)
     # construction
     construction: Construction
@@ -482,6 +591,7 @@ def source_model(
         radius_m=radii,
         current_per_a=current,
         assumptions=tuple(notes),
+        problems=problems,
     )
 
 

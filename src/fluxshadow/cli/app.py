@@ -13,7 +13,7 @@ from collections.abc import Callable
 from dataclasses import replace
 from enum import StrEnum
 from pathlib import Path
-from typing import Annotated, Any
+from typing import Annotated, Any, assert_never
 
 import typer
 from rich.console import Console
@@ -25,8 +25,11 @@ from fluxshadow.board.summary import parts_summary, stack_summary
 from fluxshadow.checks.model import Report
 from fluxshadow.checks.run import run_checks
 from fluxshadow.errors import FluxshadowError
+from fluxshadow.report.html import report_to_html
 from fluxshadow.report.inventory import parts_text, stack_text, to_json
 from fluxshadow.report.json_report import report_to_json
+from fluxshadow.report.junit import report_to_junit
+from fluxshadow.report.sarif import report_to_sarif
 from fluxshadow.report.terminal import report_to_text
 
 __all__ = ["app", "main"]
@@ -48,6 +51,16 @@ class Format(StrEnum):
     json = "json"
 
 
+class CheckFormat(StrEnum):
+    """Output formats of ``check`` and ``demo``."""
+
+    text = "text"
+    json = "json"
+    sarif = "sarif"
+    junit = "junit"
+    html = "html"
+
+
 class FailOn(StrEnum):
     """Lowest unwaived severity that makes ``check`` exit with 1."""
 
@@ -62,6 +75,15 @@ PackageArg = Annotated[
     typer.Argument(help="Fabrication package: a folder, a .zip or a .tgz.", show_default=False),
 ]
 FormatOpt = Annotated[Format, typer.Option("--format", "-f", help="Output format.")]
+CheckFormatOpt = Annotated[
+    CheckFormat,
+    typer.Option(
+        "--format",
+        "-f",
+        help="Output format: text, json, sarif (SARIF 2.1.0), junit (JUnit XML) or html "
+        "(one self-contained page).",
+    ),
+]
 ConfigOpt = Annotated[
     Path | None,
     typer.Option("--config", "-c", help="fluxshadow.toml to use (default: beside the package)."),
@@ -142,6 +164,22 @@ FailOpt = Annotated[
     FailOn,
     typer.Option("--fail-on", help="Exit with 1 when an unwaived finding is at or above this."),
 ]
+PicturesOpt = Annotated[
+    Path | None,
+    typer.Option(
+        "--pictures",
+        help="Also write pictures (layer strips, field maps, overview; SVG and PNG) here.",
+    ),
+]
+
+
+def _pictures(report: Report, board: Board, folder: Path | None) -> None:
+    if folder is None:
+        return
+    from fluxshadow.report.pictures import render_pictures
+
+    written = render_pictures(report, board, folder)
+    _err.print(f"{len(written)} pictures written to {folder}")
 
 
 def _check_board(board: Board) -> Report:
@@ -158,21 +196,32 @@ def _check_board(board: Board) -> Report:
         return run_checks(board, progress=step)
 
 
-def _render(report: Report, fmt: Format, output: Path | None) -> str:
-    if fmt is Format.json:
-        return report_to_json(report)
-    color = output is None and sys.stdout.isatty()
-    width = _err.size.width if color else 110
-    return report_to_text(report, width=max(width, 80), color=color)
+def _render(report: Report, fmt: CheckFormat, output: Path | None, fail_on: FailOn) -> str:
+    match fmt:
+        case CheckFormat.json:
+            return report_to_json(report)
+        case CheckFormat.sarif:
+            return report_to_sarif(report)
+        case CheckFormat.junit:
+            return report_to_junit(report, fail_on=fail_on.value)
+        case CheckFormat.html:
+            return report_to_html(report)
+        case CheckFormat.text:
+            color = output is None and sys.stdout.isatty()
+            width = _err.size.width if color else 110
+            return report_to_text(report, width=max(width, 80), color=color)
+        case _:
+            assert_never(fmt)
 
 
 @app.command()
 def check(
     package: PackageArg,
-    fmt: FormatOpt = Format.text,
+    fmt: CheckFormatOpt = CheckFormat.text,
     config: ConfigOpt = None,
     output: OutputOpt = None,
     fail_on: FailOpt = FailOn.error,
+    pictures: PicturesOpt = None,
 ) -> None:
     """Check every power magnetic: voids, rings, cut-outs, exposed traces.
 
@@ -181,7 +230,8 @@ def check(
     try:
         board = _load(package, config)
         report = _check_board(board)
-        _emit(_render(report, fmt, output), output)
+        _emit(_render(report, fmt, output, fail_on), output)
+        _pictures(report, board, pictures)
     except (FluxshadowError, OSError) as exc:
         raise _fail(exc) from None
     if report.failed(fail_on.value):
@@ -194,9 +244,10 @@ def demo(
         Path | None,
         typer.Option("--write", help="Also write the demo package into this folder."),
     ] = None,
-    fmt: FormatOpt = Format.text,
+    fmt: CheckFormatOpt = CheckFormat.text,
     output: OutputOpt = None,
     fail_on: FailOpt = FailOn.never,
+    pictures: PicturesOpt = None,
 ) -> None:
     """Write the bundled fictional demo board and check it."""
     from fluxshadow.synth.demo import demo_board
@@ -210,7 +261,8 @@ def demo(
                 _err.print(f"demo package written to {folder}")
             board = _load(folder, None)
             report = replace(_check_board(board), package="bundled demo (QX-40 rail board)")
-            _emit(_render(report, fmt, output), output)
+            _emit(_render(report, fmt, output, fail_on), output)
+            _pictures(report, board, pictures)
     except (FluxshadowError, OSError) as exc:
         raise _fail(exc) from None
     if report.failed(fail_on.value):
@@ -249,6 +301,75 @@ def compare(
         _emit(text, output)
     except (FluxshadowError, OSError) as exc:
         raise _fail(exc) from None
+
+
+@app.command()
+def batch(
+    source: Annotated[
+        Path,
+        typer.Argument(
+            help="A folder whose sub-folders and archives are packages, or a text file "
+            "listing package paths (one per line).",
+            show_default=False,
+        ),
+    ],
+    jobs: Annotated[
+        int | None,
+        typer.Option("--jobs", "-j", min=1, help="Worker processes (default: CPU count)."),
+    ] = None,
+    fmt: FormatOpt = Format.text,
+    output: OutputOpt = None,
+    config: Annotated[
+        Path | None,
+        typer.Option("--config", "-c", help="One fluxshadow.toml for every package."),
+    ] = None,
+    scheduler: Annotated[
+        str | None,
+        typer.Option(
+            "--scheduler",
+            help="Run on a Dask distributed cluster at this address (tcp://host:port).",
+        ),
+    ] = None,
+    fail_on: FailOpt = FailOn.error,
+) -> None:
+    """Check many packages in parallel and print one summary line per package.
+
+    Exit codes: 0 no package at or above --fail-on, 1 some (a package that could not be
+    read counts, except with --fail-on never), 2 bad usage.
+    """
+    from fluxshadow.batch import batch_to_text, collect_packages, run_batch
+
+    try:
+        paths = collect_packages(source)
+        if sys.stderr.isatty():
+            from rich.progress import Progress
+
+            with Progress(console=_err, transient=True) as bar:
+                task = bar.add_task("checking packages", total=len(paths))
+
+                def step(done: int, total: int, item: Any) -> None:
+                    bar.update(
+                        task, completed=done, description=f"checked {Path(item.package).name}"
+                    )
+
+                result = run_batch(
+                    paths, jobs=jobs, scheduler=scheduler, config=config, progress=step
+                )
+        else:
+            result = run_batch(paths, jobs=jobs, scheduler=scheduler, config=config)
+        if fmt is Format.json:
+            import json
+
+            text = json.dumps(result.to_dict(), indent=2, ensure_ascii=False) + "\n"
+        else:
+            color = output is None and sys.stdout.isatty()
+            width = _err.size.width if color else 110
+            text = batch_to_text(result, width=max(width, 80), color=color)
+        _emit(text, output)
+    except (FluxshadowError, OSError) as exc:
+        raise _fail(exc) from None
+    if result.failed(fail_on.value):
+        raise typer.Exit(code=1)
 
 
 def _version(value: bool) -> None:

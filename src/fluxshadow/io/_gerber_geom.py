@@ -59,12 +59,15 @@ def arc_segments(radius_mm: float, sweep_rad: float) -> int:
         ``r (1 - cos(step / 2))`` stays below :data:`ARC_CHORD_TOLERANCE_MM`.
     """
     sweep = abs(sweep_rad)
+    if not math.isfinite(sweep) or not math.isfinite(radius_mm):
+        return MAX_ARC_SEGMENTS
     n_quarter = math.ceil(sweep / _HALF_PI - 1e-9)
     if radius_mm <= ARC_CHORD_TOLERANCE_MM:
         n = n_quarter
     else:
         step = 2.0 * math.acos(1.0 - ARC_CHORD_TOLERANCE_MM / radius_mm)
-        n = max(n_quarter, math.ceil(sweep / step - 1e-9))
+        # A radius so large that the step rounds to zero gets the most chords allowed.
+        n = max(n_quarter, math.ceil(sweep / step - 1e-9)) if step > 0.0 else MAX_ARC_SEGMENTS
     return int(min(max(n, 1), MAX_ARC_SEGMENTS))
 
 

@@ -130,7 +130,8 @@ def compile_expression(text: str, *, max_depth: int = 64) -> Expr:
     def unary(depth: int) -> Expr:
         nonlocal pos
         if depth > max_depth:
-            msg = f"macro expression nesting must be at most {max_depth} deep; got {text!r}"
+            shown = text if len(text) <= 40 else text[:37] + "..."
+            msg = f"macro expression nesting must be at most {max_depth} deep; got {shown!r}"
             raise MacroError(msg, limit=True)
         t = peek()
         if t is not None and t[0] == "o" and t[1] in "+-":

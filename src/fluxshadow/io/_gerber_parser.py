@@ -99,6 +99,12 @@ class Limits:
     max_repeat: int = 100_000
     max_macro_depth: int = 64
     max_objects: int = 20_000_000
+    max_vertices: int = 50_000_000
+    max_region_vertices: int = 2_000_000
+
+
+RAISE_HINT = "raise it with {key} in the [limits] table of fluxshadow.toml"
+"""How a limit message tells the user to raise the limit (``key`` the limit's name)."""
 
 
 @dataclass(frozen=True)
@@ -200,8 +206,9 @@ class _Parser:
     def err(self, message: str, pos: int, stmt: str | None = None) -> ParseError:
         return ParseError(message, file=self.source, line=self.line(pos), statement=stmt)
 
-    def limit(self, message: str, pos: int) -> LimitError:
-        return LimitError(message, file=self.source, line=self.line(pos))
+    def limit(self, message: str, pos: int, key: str) -> LimitError:
+        hint = RAISE_HINT.format(key=key)
+        return LimitError(f"{message} ({hint})", file=self.source, line=self.line(pos))
 
     def note(self, key: str, pos: int | None, message: str) -> None:
         entry = self.notes.get(key)
@@ -220,11 +227,30 @@ class _Parser:
     def total_objects(self) -> int:
         return self.table.n_objects + sum(t.n_objects for _k, _v, t in self.stack)
 
-    def check_objects(self, extra: int, pos: int) -> None:
+    def check_objects(self, extra: int, pos: int, extra_vertices: int = 0) -> None:
         total = self.total_objects() + extra
         if total > self.limits.max_objects:
             msg = f"object count must be at most {self.limits.max_objects}; got {total}"
-            raise self.limit(msg, pos)
+            raise self.limit(msg, pos, "max_objects")
+        self.check_vertices(extra_vertices, pos)
+
+    def total_vertices(self) -> int:
+        return self.table.n_vertices + sum(t.n_vertices for _k, _v, t in self.stack)
+
+    def check_vertices(self, extra: int, pos: int) -> None:
+        total = self.total_vertices() + len(self.rverts) // 2 + extra
+        if total > self.limits.max_vertices:
+            msg = f"vertex count must be at most {self.limits.max_vertices}; got {total}"
+            raise self.limit(msg, pos, "max_vertices")
+
+    def check_region(self, pos: int) -> None:
+        n = len(self.rverts) // 2
+        if n > self.limits.max_region_vertices:
+            msg = (
+                f"region (G36..G37) vertex count must be at most "
+                f"{self.limits.max_region_vertices}; got {n} or more"
+            )
+            raise self.limit(msg, pos, "max_region_vertices")
 
     # ------------------------------------------------------------------ main loop
 
@@ -421,7 +447,7 @@ class _Parser:
             self.macros[name] = parse_macro(name, blocks[1:], max_depth=self.limits.max_macro_depth)
         except MacroError as e:
             if e.limit:
-                raise self.limit(str(e), pos) from e
+                raise self.limit(str(e), pos, "max_macro_depth") from e
             raise self.err(str(e), pos, body) from e
 
     # ------------------------------------------------------------------ objects
@@ -475,7 +501,7 @@ class _Parser:
         chunk = d.chunk
         if chunk.n_objects == 0:
             return
-        self.check_objects(chunk.n_objects, pos)
+        self.check_objects(chunk.n_objects, pos, int(chunk.vertices.shape[0]))
         t = self.transform
         uniq, inverse = np.unique(chunk.aperture, return_inverse=True)
         mapped = np.empty(len(uniq), dtype=np.int64)
@@ -584,6 +610,8 @@ class _Parser:
             self.rverts.append(self.y)
             self.contour_open = True
         self.rverts.extend(pts)
+        if len(self.rverts) > 2 * self.limits.max_region_vertices:
+            self.check_region(pos)
 
     # ------------------------------------------------------------------ operations
 
@@ -629,6 +657,7 @@ class _Parser:
                 iv = self.conv(is_, 0, pos) if is_ else 0.0
                 jv = self.conv(js, 1, pos) if js else 0.0
                 pts = self.arc(nx, ny, iv, jv, pos, stmt)
+                self.check_vertices(len(pts) // 2, pos)
                 if self.in_region:
                     self.region_draw(pts, pos, stmt)
                 elif self.chain_open:
@@ -843,6 +872,8 @@ class _Parser:
             self.rstarts.extend((base + first[~ck]).tolist())
             self.rverts.extend(np.column_stack([vx, vy]).ravel().tolist())
             self.contour_open = bool(is1[-1])
+            self.check_region(pos)
+            self.check_vertices(0, pos)
         else:
             self.emit_tracks_and_flashes(d, px, py, prevx, prevy, pos)
         self.x = float(px[-1])
@@ -907,6 +938,7 @@ class _Parser:
             t.func.extend([self.ap_func[ap]] * n_new)
             t.vstart.extend((base_v + start_vpos).tolist())
             t.verts.extend(np.column_stack([vx, vy]).ravel().tolist())
+            self.check_vertices(0, pos)
         self.chain_open = bool(open_after[-1])
 
     # ------------------------------------------------------------------ word commands
@@ -1194,7 +1226,7 @@ class _Parser:
             raise self.err(f"step and repeat counts must be >= 1; got X{nx} Y{ny}", pos, w)
         if nx * ny > self.limits.max_repeat:
             msg = f"step and repeat copies must be at most {self.limits.max_repeat}; got {nx * ny}"
-            raise self.limit(msg, pos)
+            raise self.limit(msg, pos, "max_repeat")
         if nx == 1 and ny == 1:
             return
         if self.unit_mm is None:
@@ -1207,7 +1239,7 @@ class _Parser:
     def push(self, kind: str, info: object, pos: int) -> None:
         if len(self.stack) >= self.limits.max_macro_depth:
             msg = f"block nesting must be at most {self.limits.max_macro_depth} deep; got deeper"
-            raise self.limit(msg, pos)
+            raise self.limit(msg, pos, "max_macro_depth")
         self.end_region_if_open(pos)
         self.stack.append((kind, info, self.table))
         self.table = Table()
@@ -1224,7 +1256,7 @@ class _Parser:
         self.table = parent
         self.chain_open = False
         copies = nx * ny
-        self.check_objects(chunk.n_objects * copies, pos)
+        self.check_objects(chunk.n_objects * copies, pos, int(chunk.vertices.shape[0]) * copies)
         ii, jj = np.meshgrid(np.arange(nx), np.arange(ny), indexing="ij")
         offsets = np.column_stack([ii.ravel() * di, jj.ravel() * dj]).astype(np.float64)
         self.table.add_chunk(tile_chunk(chunk, offsets))

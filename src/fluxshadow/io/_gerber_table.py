@@ -78,6 +78,7 @@ class Table:
         "func",
         "kind",
         "n_chunk_objects",
+        "n_chunk_vertices",
         "net",
         "ox",
         "oy",
@@ -100,11 +101,17 @@ class Table:
         self.verts: list[float] = []
         self.chunks: list[Chunk] = []
         self.n_chunk_objects = 0
+        self.n_chunk_vertices = 0
 
     @property
     def n_objects(self) -> int:
         """Objects so far (frozen chunks and pending lists)."""
         return self.n_chunk_objects + len(self.kind)
+
+    @property
+    def n_vertices(self) -> int:
+        """Vertices so far (frozen chunks and pending lists)."""
+        return self.n_chunk_vertices + len(self.verts) // 2
 
     def flush(self) -> None:
         """Freeze the pending lists into a chunk."""
@@ -130,6 +137,7 @@ class Table:
         )
         self.chunks.append(chunk)
         self.n_chunk_objects += n
+        self.n_chunk_vertices += int(chunk.vertices.shape[0])
         for lst in (
             self.kind,
             self.dark,
@@ -152,6 +160,7 @@ class Table:
         self.flush()
         self.chunks.append(chunk)
         self.n_chunk_objects += chunk.n_objects
+        self.n_chunk_vertices += int(chunk.vertices.shape[0])
 
     def finish(self) -> Chunk:
         """Freeze everything into one chunk."""

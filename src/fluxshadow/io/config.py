@@ -1,10 +1,15 @@
 """The ``fluxshadow.toml`` configuration: layer map, stack-up, placement frame, parts,
-regulators, thresholds, severities and waivers.
+regulators, thresholds, severities, waivers and safety limits.
 
 Everything is validated on load: an unknown key (at the top level or inside a table), a
 value of the wrong type or out of range raises :class:`~fluxshadow.errors.ConfigError`
 naming the file and the key path, e.g.
-``fluxshadow.toml: part[2].winding_radius_mm must be a positive number; got -1``.
+``fluxshadow.toml: part[2].height_mm must be a positive number; got -1``. The physics
+values of a ``[[regulator]]`` (``vin_v``, ``vout_v``, ``fsw_hz``, ``inductance_h``,
+``ripple_a``) and of a ``[[part]]``'s winding (``turns``, ``winding_radius_mm``,
+``winding_bottom_mm``, ``winding_height_mm``) only have to be finite numbers here: values
+that make no sense are reported by ``check`` with the key named, and its figures fall back
+to the defaults, while the geometric findings are still given.
 Array-of-table entries (``[[part]]``, ``[[regulator]]``, ``[[waiver]]``) are counted from 1
 in the order they appear in the file.
 
@@ -48,6 +53,10 @@ Example::
     ref = "L3"
     layer = "L3"
     reason = "keep-out required by the antenna"
+
+    [limits]
+    max_file_bytes = 400_000_000
+    max_vertices = 100_000_000
 """
 
 from __future__ import annotations
@@ -66,6 +75,7 @@ __all__ = [
     "AXES",
     "CONFIG_FILE_NAME",
     "CONSTRUCTIONS",
+    "LIMIT_KEYS",
     "PART_KINDS",
     "SEVERITIES",
     "Config",
@@ -97,6 +107,22 @@ CONSTRUCTIONS: tuple[Construction, ...] = (
 )
 AXES: tuple[Axis, ...] = ("vertical", "horizontal")
 SEVERITIES: tuple[Severity, ...] = ("error", "warning", "note", "off")
+LIMIT_KEYS: tuple[str, ...] = (
+    "max_unpacked_bytes",
+    "max_entries",
+    "max_file_bytes",
+    "max_ratio",
+    "ratio_min_bytes",
+    "max_repeat",
+    "max_macro_depth",
+    "max_objects",
+    "max_vertices",
+    "max_region_vertices",
+    "max_drill_features",
+)
+"""Keys of ``[limits]``: the fields of :class:`fluxshadow.io.package.Limits`."""
+_MAX_MACRO_DEPTH = 256
+"""Largest ``max_macro_depth`` accepted (deeper nesting would exhaust the stack)."""
 
 
 @dataclass(frozen=True, kw_only=True)
@@ -202,6 +228,7 @@ class Config:
     thresholds: dict[str, float] = field(default_factory=dict)
     severity: dict[str, Severity] = field(default_factory=dict)
     waivers: tuple[Waiver, ...] = ()
+    limits: dict[str, float] = field(default_factory=dict)
 
 
 # --------------------------------------------------------------------------- checks
@@ -315,6 +342,7 @@ _TOP_KEYS = (
     "thresholds",
     "severity",
     "waiver",
+    "limits",
 )
 _STACKUP_KEYS = ("copper_mm", "dielectric_mm", "epsilon_r", "board_thickness_mm")
 _PLACEMENT_KEYS = (
@@ -461,6 +489,12 @@ def _parts(c: _Checker, value: object) -> tuple[PartConfig, ...]:
         def pos(key: str, p: str = p, t: dict[str, object] = t) -> float | None:
             return c.number(t[key], f"{p}.{key}", positive=True) if key in t else None
 
+        # The winding's physics values: any finite number here; values that make no sense
+        # for the part (a radius beyond the body, turns below 1) are reported by the check,
+        # which falls back to its defaults (fluxshadow.checks.source.checked_part).
+        def num(key: str, p: str = p, t: dict[str, object] = t) -> float | None:
+            return c.number(t[key], f"{p}.{key}") if key in t else None
+
         body: tuple[float, float] | None = None
         if "body_mm" in t:
             dims = c.numbers(t["body_mm"], f"{p}.body_mm")
@@ -487,14 +521,10 @@ def _parts(c: _Checker, value: object) -> tuple[PartConfig, ...]:
                     if "axis_angle_deg" in t
                     else None
                 ),
-                turns=pos("turns"),
-                winding_radius_mm=pos("winding_radius_mm"),
-                winding_bottom_mm=(
-                    c.number(t["winding_bottom_mm"], f"{p}.winding_bottom_mm", non_negative=True)
-                    if "winding_bottom_mm" in t
-                    else None
-                ),
-                winding_height_mm=pos("winding_height_mm"),
+                turns=num("turns"),
+                winding_radius_mm=num("winding_radius_mm"),
+                winding_bottom_mm=num("winding_bottom_mm"),
+                winding_height_mm=num("winding_height_mm"),
             )
         )
     return tuple(out)
@@ -524,14 +554,20 @@ def _regulators(c: _Checker, value: object) -> tuple[RegulatorConfig, ...]:
                 )
             return v
 
+        # The operating point: any finite number here; a point that makes no sense (Vout >=
+        # Vin, a negative value, fsw out of range) is reported by the check, whose figures
+        # fall back to per A/us (fluxshadow.checks.operating.operating_points).
+        def num(key: str, p: str = p, t: dict[str, object] = t) -> float | None:
+            return c.number(t[key], f"{p}.{key}") if key in t else None
+
         out.append(
             RegulatorConfig(
                 parts=parts,
-                vin_v=pos("vin_v"),
-                vout_v=pos("vout_v"),
-                fsw_hz=pos("fsw_hz"),
-                inductance_h=pos("inductance_h"),
-                ripple_a=pos("ripple_a"),
+                vin_v=num("vin_v"),
+                vout_v=num("vout_v"),
+                fsw_hz=num("fsw_hz"),
+                inductance_h=num("inductance_h"),
+                ripple_a=num("ripple_a"),
                 switch_net=(
                     c.text(t["switch_net"], f"{p}.switch_net") if "switch_net" in t else None
                 ),
@@ -563,6 +599,23 @@ def _waivers(c: _Checker, value: object) -> tuple[Waiver, ...]:
             )
         )
     return tuple(out)
+
+
+def _limits(c: _Checker, value: object) -> dict[str, float]:
+    t = c.table(value, "limits")
+    c.keys(t, LIMIT_KEYS, "limits")
+    out: dict[str, float] = {}
+    for key, v in t.items():
+        path = f"limits.{key}"
+        if key == "max_ratio":
+            out[key] = c.number(v, path, minimum=1.0)
+            continue
+        if not isinstance(v, int) or isinstance(v, bool) or v < 1:
+            raise c.fail(f"{path} must be a whole number >= 1; got {_show(v)}")
+        if key == "max_macro_depth" and v > _MAX_MACRO_DEPTH:
+            raise c.fail(f"{path} must be at most {_MAX_MACRO_DEPTH}; got {v}")
+        out[key] = v
+    return out
 
 
 def parse_config(text: str, *, source: str = "<string>") -> Config:
@@ -604,6 +657,7 @@ def parse_config(text: str, *, source: str = "<string>") -> Config:
         thresholds=thresholds,
         severity=severity,
         waivers=_waivers(c, data["waiver"]) if "waiver" in data else (),
+        limits=_limits(c, data["limits"]) if "limits" in data else {},
     )
 
 

@@ -16,7 +16,7 @@ What is read
 - Rout mode: ``G00`` move, ``M15`` plunge, ``G01`` linear and ``G02``/``G03`` arcs (``A``
   radius or ``I``/``J`` centre offsets from the start point), ``M16``/``M17`` retract.
   Every cut becomes one straight slot; arcs are split into chords no longer than 10 degrees
-  and with a sagitta of at most :data:`ARC_SAGITTA_MM`.
+  and with a sagitta of at most :data:`ARC_SAGITTA_MM` (at most 4096 chords per arc).
 - Plating, per tool, from the first that applies: an X2-style ``TA.AperFunction`` comment
   (``; #@! TA.AperFunction,Plated,PTH,ViaDrill``), a ``;TYPE=PLATED``/``;TYPE=NON_PLATED``
   comment, the ``TF.FileFunction`` comment (``Plated``/``NonPlated``), the file name
@@ -56,6 +56,9 @@ ARC_MAX_STEP_DEG = 10.0
 """Largest angle (degrees) one chord of a linearised routed arc may span."""
 
 _MAX_REPEAT = 100_000
+_MAX_ARC_CHORDS = 4096
+"""Most chords one routed arc becomes (arcs of absurd radius are coarser than the sagitta)."""
+_RAISE_HINT = "raise it with max_drill_features in the [limits] table of fluxshadow.toml"
 _MAX_NOTICES = 50
 
 Units = Literal["mm", "inch"]
@@ -130,6 +133,7 @@ class _State:
     notices: list[Notice] = field(default_factory=list)
     notice_keys: set[str] = field(default_factory=set)
     ended: bool = False
+    max_features: int = 10_000_000
 
     def notice(self, key: str, line: int | None, message: str) -> None:
         """Record a notice once per ``key`` (and at most ``_MAX_NOTICES`` in all)."""
@@ -177,7 +181,9 @@ def looks_like_excellon(head: str) -> bool:
     return has_units and has_coords and has_select
 
 
-def read_excellon(path: str | Path, *, max_bytes: int = 100_000_000) -> DrillRecord:
+def read_excellon(
+    path: str | Path, *, max_bytes: int = 100_000_000, max_features: int = 10_000_000
+) -> DrillRecord:
     """Read one Excellon drill/rout file.
 
     Parameters
@@ -186,6 +192,8 @@ def read_excellon(path: str | Path, *, max_bytes: int = 100_000_000) -> DrillRec
         The file. Its name also serves as a plating hint (``NPTH``, ``PTH``, ...).
     max_bytes : int
         Refuse files larger than this (:class:`~fluxshadow.errors.LimitError`).
+    max_features : int
+        Most holes plus slots (repeats and linearised arcs counted).
 
     Returns
     -------
@@ -197,7 +205,7 @@ def read_excellon(path: str | Path, *, max_bytes: int = 100_000_000) -> DrillRec
     InputError
         The file cannot be read or is binary.
     LimitError
-        The file is larger than ``max_bytes``.
+        The file is larger than ``max_bytes`` or has more than ``max_features`` features.
     ParseError
         A statement is malformed or unsupported (with file and line).
     """
@@ -209,7 +217,9 @@ def read_excellon(path: str | Path, *, max_bytes: int = 100_000_000) -> DrillRec
         raise InputError(f"drill file must be readable; got {exc.strerror}", file=source) from exc
     if size > max_bytes:
         raise LimitError(
-            f"drill file size must be at most {max_bytes} bytes; got {size} bytes", file=source
+            f"drill file size must be at most {max_bytes} bytes; got {size} bytes (raise it "
+            "with max_file_bytes in the [limits] table of fluxshadow.toml)",
+            file=source,
         )
     try:
         data = p.read_bytes()
@@ -221,10 +231,16 @@ def read_excellon(path: str | Path, *, max_bytes: int = 100_000_000) -> DrillRec
         text = data.decode("utf-8")
     except UnicodeDecodeError:
         text = data.decode("latin-1")
-    return parse_excellon(text, source=source, filename_hint=p.name)
+    return parse_excellon(text, source=source, filename_hint=p.name, max_features=max_features)
 
 
-def parse_excellon(text: str, *, source: str = "<string>", filename_hint: str = "") -> DrillRecord:
+def parse_excellon(
+    text: str,
+    *,
+    source: str = "<string>",
+    filename_hint: str = "",
+    max_features: int = 10_000_000,
+) -> DrillRecord:
     """Parse Excellon text into holes and slots.
 
     Parameters
@@ -235,6 +251,8 @@ def parse_excellon(text: str, *, source: str = "<string>", filename_hint: str = 
         Name used in the record and in messages.
     filename_hint : str
         File name used for plating hints; defaults to the last part of ``source``.
+    max_features : int
+        Most holes plus slots (:class:`~fluxshadow.errors.LimitError` beyond).
 
     Returns
     -------
@@ -252,7 +270,7 @@ def parse_excellon(text: str, *, source: str = "<string>", filename_hint: str = 
     """
     if not filename_hint and source != "<string>":
         filename_hint = Path(source).name
-    st = _State(source=source)
+    st = _State(source=source, max_features=max_features)
     for lineno, raw in enumerate(text.splitlines(), start=1):
         stmt = raw.strip()
         if not stmt:
@@ -265,7 +283,15 @@ def parse_excellon(text: str, *, source: str = "<string>", filename_hint: str = 
         if ";" in stmt:
             stmt = stmt.split(";", 1)[0].strip()
         _statement(st, stmt.upper(), lineno)
+        if len(st.holes) + len(st.slots) > max_features:
+            _too_many(st, lineno, 0)
     return _finish(st, filename_hint)
+
+
+def _too_many(st: _State, lineno: int, extra: int) -> None:
+    total = len(st.holes) + len(st.slots) + extra
+    msg = f"hole and slot count must be at most {st.max_features}; got {total} ({_RAISE_HINT})"
+    raise LimitError(msg, file=st.source, line=lineno)
 
 
 # ----------------------------------------------------------------------------------------
@@ -631,7 +657,9 @@ def _arc_chords(
     step = math.radians(ARC_MAX_STEP_DEG)
     if r > ARC_SAGITTA_MM:
         step = min(step, 2 * math.acos(1 - ARC_SAGITTA_MM / r))
-    n = max(1, math.ceil(abs(sweep) / step - 1e-9))
+    n = min(max(1, math.ceil(abs(sweep) / step - 1e-9)), _MAX_ARC_CHORDS)
+    if len(st.holes) + len(st.slots) + n > st.max_features:
+        _too_many(st, lineno, n)
     pts = [
         (cx + r * math.cos(a0 + sweep * k / n), cy + r * math.sin(a0 + sweep * k / n))
         for k in range(n + 1)
@@ -729,6 +757,8 @@ def _repeat(st: _State, count: int, rest: str, lineno: int, stmt: str) -> None:
     words = _words(st, rest, lineno, stmt)
     dx, dy = words.get("X", 0.0), words.get("Y", 0.0)
     tool = _need_tool(st, lineno, stmt)
+    if len(st.holes) + len(st.slots) + count > st.max_features:
+        _too_many(st, lineno, count)
     x, y = st.last_hole
     for _ in range(count):
         x, y = x + dx, y + dy

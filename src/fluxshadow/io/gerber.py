@@ -27,7 +27,7 @@ from typing import Literal
 from fluxshadow.errors import ConfigError, InputError, LimitError
 from fluxshadow.io._gerber_attrs import scan_header
 from fluxshadow.io._gerber_geom import ARC_CHORD_TOLERANCE_MM
-from fluxshadow.io._gerber_parser import Limits, parse_text
+from fluxshadow.io._gerber_parser import RAISE_HINT, Limits, parse_text
 from fluxshadow.io.records import ArtworkRecord
 
 __all__ = [
@@ -44,16 +44,33 @@ def _decode(data: bytes) -> str:
     return text.removeprefix("\ufeff")
 
 
-def _check_limits(max_repeat: int, max_macro_depth: int, max_objects: int) -> Limits:
+def _check_limits(
+    max_repeat: int,
+    max_macro_depth: int,
+    max_objects: int,
+    max_vertices: int,
+    max_region_vertices: int,
+) -> Limits:
     for name, value in (
         ("max_repeat", max_repeat),
         ("max_macro_depth", max_macro_depth),
         ("max_objects", max_objects),
+        ("max_vertices", max_vertices),
+        ("max_region_vertices", max_region_vertices),
     ):
         if value < 1:
             msg = f"{name} must be >= 1; got {value}"
             raise ConfigError(msg)
-    return Limits(max_repeat=max_repeat, max_macro_depth=max_macro_depth, max_objects=max_objects)
+    return Limits(
+        max_repeat=max_repeat,
+        max_macro_depth=max_macro_depth,
+        max_objects=max_objects,
+        max_vertices=max_vertices,
+        max_region_vertices=max_region_vertices,
+    )
+
+
+_SIZE_HINT = RAISE_HINT.format(key="max_file_bytes")
 
 
 def read_gerber(
@@ -63,6 +80,8 @@ def read_gerber(
     max_repeat: int = 100_000,
     max_macro_depth: int = 64,
     max_objects: int = 20_000_000,
+    max_vertices: int = 50_000_000,
+    max_region_vertices: int = 2_000_000,
 ) -> ArtworkRecord:
     """Read one Gerber file.
 
@@ -78,6 +97,11 @@ def read_gerber(
         Deepest nesting of macro expressions and of block apertures / step-and-repeat.
     max_objects : int
         Largest number of objects after expansion.
+    max_vertices : int
+        Largest number of polyline/ring vertices after expansion (arcs linearised,
+        blocks and step-and-repeat copies counted).
+    max_region_vertices : int
+        Largest number of vertices of one region (G36..G37, all its contours).
 
     Returns
     -------
@@ -91,7 +115,8 @@ def read_gerber(
     ParseError
         A statement is malformed or unsupported (message names file and line).
     LimitError
-        A safety limit was exceeded (file size, copies, nesting depth, object count).
+        A safety limit was exceeded (file size, copies, nesting depth, object or vertex
+        count); the message names the limit and how to raise it.
     ConfigError
         A limit option is below 1.
     """
@@ -102,7 +127,7 @@ def read_gerber(
         msg = f"Gerber file must be readable; got {e.strerror or e}"
         raise InputError(msg, file=source) from e
     if size > max_bytes:
-        msg = f"file size must be at most {max_bytes} bytes; got {size}"
+        msg = f"file size must be at most {max_bytes} bytes; got {size} ({_SIZE_HINT})"
         raise LimitError(msg, file=source)
     try:
         with open(source, "rb") as fh:
@@ -111,9 +136,11 @@ def read_gerber(
         msg = f"Gerber file must be readable; got {e.strerror or e}"
         raise InputError(msg, file=source) from e
     if len(data) > max_bytes:
-        msg = f"file size must be at most {max_bytes} bytes; got more"
+        msg = f"file size must be at most {max_bytes} bytes; got more ({_SIZE_HINT})"
         raise LimitError(msg, file=source)
-    limits = _check_limits(max_repeat, max_macro_depth, max_objects)
+    limits = _check_limits(
+        max_repeat, max_macro_depth, max_objects, max_vertices, max_region_vertices
+    )
     return parse_text(_decode(data), source=source, limits=limits, size_bytes=len(data))
 
 
@@ -125,6 +152,8 @@ def parse_gerber(
     max_repeat: int = 100_000,
     max_macro_depth: int = 64,
     max_objects: int = 20_000_000,
+    max_vertices: int = 50_000_000,
+    max_region_vertices: int = 2_000_000,
 ) -> ArtworkRecord:
     """Parse Gerber text (same rules and limits as :func:`read_gerber`).
 
@@ -134,8 +163,10 @@ def parse_gerber(
         The file content.
     source : str
         Name used in messages and in the record.
-    max_bytes, max_repeat, max_macro_depth, max_objects : int
+    max_bytes, max_repeat, max_macro_depth, max_objects, max_vertices : int
         As for :func:`read_gerber` (``max_bytes`` counts UTF-8 bytes).
+    max_region_vertices : int
+        As for :func:`read_gerber`.
 
     Returns
     -------
@@ -149,9 +180,11 @@ def parse_gerber(
     """
     size = len(text.encode("utf-8"))
     if size > max_bytes:
-        msg = f"text size must be at most {max_bytes} bytes; got {size}"
+        msg = f"text size must be at most {max_bytes} bytes; got {size} ({_SIZE_HINT})"
         raise LimitError(msg, file=source)
-    limits = _check_limits(max_repeat, max_macro_depth, max_objects)
+    limits = _check_limits(
+        max_repeat, max_macro_depth, max_objects, max_vertices, max_region_vertices
+    )
     return parse_text(text, source=source, limits=limits, size_bytes=size)
 
 

@@ -75,6 +75,21 @@ class Limits:
         that inflates beyond ``ratio_min_bytes`` (default 200).
     ratio_min_bytes : int
         Size above which the ratio limit applies (bytes; default 50 MB).
+    max_repeat : int
+        Most copies one Gerber step-and-repeat may make (default 100,000).
+    max_macro_depth : int
+        Deepest nesting of Gerber macro expressions and block apertures (default 64).
+    max_objects : int
+        Most objects one Gerber file may expand to (default 20 million).
+    max_vertices : int
+        Most vertices one Gerber file may expand to (default 50 million).
+    max_region_vertices : int
+        Most vertices of one Gerber region, all contours (default 2 million).
+    max_drill_features : int
+        Most holes plus slots of one drill file (default 10 million).
+
+    Every field can be set in the ``[limits]`` table of ``fluxshadow.toml``; a limit that
+    is hit raises :class:`~fluxshadow.errors.LimitError` naming the field.
     """
 
     max_unpacked_bytes: int = 1024 * _MiB
@@ -82,6 +97,12 @@ class Limits:
     max_file_bytes: int = 200 * 1000 * 1000
     max_ratio: float = 200.0
     ratio_min_bytes: int = 50 * 1000 * 1000
+    max_repeat: int = 100_000
+    max_macro_depth: int = 64
+    max_objects: int = 20_000_000
+    max_vertices: int = 50_000_000
+    max_region_vertices: int = 2_000_000
+    max_drill_features: int = 10_000_000
 
 
 DEFAULT_LIMITS = Limits()
@@ -302,7 +323,8 @@ def scan_folder(
             if count > limits.max_entries:
                 msg = (
                     f"package file count must be at most {limits.max_entries}; got more "
-                    "(is this the right folder?)"
+                    "(is this the right folder?"
+                    "; raise it with max_entries in the [limits] table of fluxshadow.toml)"
                 )
                 raise LimitError(msg, file=shown)
             path = here / fname
@@ -388,12 +410,16 @@ def _check_totals(
 ) -> None:
     at = f" at entry {entry!r}" if entry is not None else ""
     if count > limits.max_entries:
-        msg = f"archive entry count must be at most {limits.max_entries}; got {count} or more{at}"
+        msg = (
+            f"archive entry count must be at most {limits.max_entries}; got {count} or "
+            f"more{at} (raise it with max_entries in the [limits] table of fluxshadow.toml)"
+        )
         raise LimitError(msg, file=archive)
     if total > limits.max_unpacked_bytes:
         msg = (
             f"archive unpacked size must be at most {_fmt_bytes(limits.max_unpacked_bytes)}; "
-            f"got {_fmt_bytes(total)} or more{at} (from the entry headers)"
+            f"got {_fmt_bytes(total)} or more{at} (from the entry headers; raise it with "
+            "max_unpacked_bytes in the [limits] table of fluxshadow.toml)"
         )
         raise LimitError(msg, file=archive)
 
@@ -424,7 +450,8 @@ class _Budget:
                 msg = (
                     "archive unpacked size must be at most "
                     f"{_fmt_bytes(self.limits.max_unpacked_bytes)}; got more while unpacking "
-                    f"{entry!r}"
+                    f"{entry!r} (raise it with max_unpacked_bytes in the [limits] table of "
+                    "fluxshadow.toml)"
                 )
                 raise LimitError(msg, file=self.archive)
             dst.write(chunk)
@@ -473,7 +500,8 @@ def _extract_zip(path: Path, shown: str, dest: Path, limits: Limits) -> list[Not
                 msg = (
                     f"archive entry {info.filename!r} compression ratio must be at most "
                     f"{limits.max_ratio:.0f}:1 above {_fmt_bytes(limits.ratio_min_bytes)}; got "
-                    f"{size / max(packed, 1):.0f}:1 ({_fmt_bytes(size)} from {_fmt_bytes(packed)})"
+                    f"{size / max(packed, 1):.0f}:1 ({_fmt_bytes(size)} from {_fmt_bytes(packed)}; "
+                    "raise it with max_ratio in the [limits] table of fluxshadow.toml)"
                 )
                 raise LimitError(msg, file=shown)
             if info.flag_bits & 0x1:
@@ -565,7 +593,8 @@ def _extract_tar(path: Path, shown: str, dest: Path, limits: Limits) -> list[Not
                     msg = (
                         f"archive compression ratio must be at most {limits.max_ratio:.0f}:1 "
                         f"above {_fmt_bytes(limits.ratio_min_bytes)}; got "
-                        f"{total / max(archive_size, 1):.0f}:1 at entry {m.name!r}"
+                        f"{total / max(archive_size, 1):.0f}:1 at entry {m.name!r} (raise it "
+                        "with max_ratio in the [limits] table of fluxshadow.toml)"
                     )
                     raise LimitError(msg, file=shown)
                 plan.append((m, parts))
