@@ -367,14 +367,14 @@ def _run_dask(
         )
         raise ConfigError(msg) from None
     try:
-        client = Client(scheduler, timeout=timeout_s)
+        client = Client(scheduler, timeout=timeout_s)  # type: ignore[no-untyped-call]
     except (OSError, TimeoutError) as exc:
         msg = f"scheduler must be reachable at {scheduler!r}; got {type(exc).__name__}: {exc}"
         raise InputError(msg) from None
     with client:
         futures = client.map(check_package, list(paths), config=config, pure=False)
         index = {f.key: i for i, f in enumerate(futures)}
-        for fut in dask_completed(futures):
+        for fut in dask_completed(futures):  # type: ignore[no-untyped-call]
             i = index[fut.key]
             try:
                 data = fut.result()
