@@ -11,11 +11,23 @@ from collections.abc import Callable
 from pathlib import Path
 
 import pytest
+from hypothesis import HealthCheck, settings
 
 REPO = Path(__file__).resolve().parents[1]
 SHARED = REPO.parent / "shared"
 REALBOARDS = SHARED / "realboards"
 REALBOARDS_ODB = SHARED / "realboards-odb"
+
+# The reader fuzz tests share one profile: fixed examples (derandomized, no example
+# database) and a per-example deadline, so a hang fails and every run is the same.
+settings.register_profile(
+    "fuzz",
+    max_examples=250,
+    deadline=3000,
+    derandomize=True,
+    database=None,
+    suppress_health_check=[HealthCheck.too_slow, HealthCheck.data_too_large],
+)
 
 BOARD_NAMES = (
     "bq25798-mppt-v2.1",

@@ -8,7 +8,7 @@ import shutil
 from pathlib import Path
 
 import pytest
-from hypothesis import HealthCheck, given, settings
+from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from fluxshadow.board.load import load_package
@@ -64,13 +64,7 @@ def _parse(text: str) -> None:
         assert value >= 1, key
 
 
-FUZZ = settings(
-    max_examples=300,
-    deadline=3000,
-    derandomize=True,
-    database=None,
-    suppress_health_check=[HealthCheck.too_slow, HealthCheck.data_too_large],
-)
+FUZZ = settings(settings.get_profile("fuzz"), max_examples=300)
 
 
 @FUZZ

@@ -9,7 +9,7 @@ from __future__ import annotations
 from pathlib import Path
 
 import pytest
-from hypothesis import HealthCheck, given, settings
+from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from fluxshadow.errors import FluxshadowError, LimitError
@@ -71,13 +71,7 @@ def _parse(data: bytes) -> None:
     assert len(rec.hole_xy) + len(rec.slot_xy) <= MAX_FEATURES
 
 
-FUZZ = settings(
-    max_examples=250,
-    deadline=3000,
-    derandomize=True,
-    database=None,
-    suppress_health_check=[HealthCheck.too_slow, HealthCheck.data_too_large],
-)
+FUZZ = settings.get_profile("fuzz")
 
 
 @FUZZ

@@ -11,7 +11,7 @@ from pathlib import Path
 
 import numpy as np
 import pytest
-from hypothesis import HealthCheck, given, settings
+from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from fluxshadow.errors import FluxshadowError, LimitError
@@ -88,13 +88,7 @@ def _parse(data: bytes) -> None:
     assert rec.vertices.shape[0] <= SMALL["max_vertices"]
 
 
-FUZZ = settings(
-    max_examples=250,
-    deadline=3000,
-    derandomize=True,
-    database=None,
-    suppress_health_check=[HealthCheck.too_slow, HealthCheck.data_too_large],
-)
+FUZZ = settings.get_profile("fuzz")
 
 
 @FUZZ

@@ -8,7 +8,7 @@ import math
 from pathlib import Path
 
 import pytest
-from hypothesis import HealthCheck, given, settings
+from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from fluxshadow.errors import FluxshadowError, LimitError
@@ -74,13 +74,7 @@ def _parse(data: bytes) -> None:
         parse_bom(text, source="fuzz.csv")
 
 
-FUZZ = settings(
-    max_examples=250,
-    deadline=3000,
-    derandomize=True,
-    database=None,
-    suppress_health_check=[HealthCheck.too_slow, HealthCheck.data_too_large],
-)
+FUZZ = settings.get_profile("fuzz")
 
 
 @FUZZ

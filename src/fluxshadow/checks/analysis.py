@@ -174,6 +174,7 @@ def trace_void(
     *,
     max_half_mm: float,
     known: tuple[tuple[float, float, float, float], BaseGeometry] | None = None,
+    extent: BaseGeometry | None = None,
 ) -> RingInfo:
     """Decide whether the copper around a void closes a ring (widening the window).
 
@@ -192,12 +193,14 @@ def trace_void(
         Largest half-size of the search window (mm).
     known : (window, copper), optional
         Copper already composed for a window around the seed, tried first.
+    extent : shapely geometry, optional
+        The board's shape from :func:`board_extent`, when the caller has it already.
 
     Returns
     -------
     RingInfo
     """
-    outer = board_extent(board)
+    outer = board_extent(board) if extent is None else extent
     outer = shapely.Polygon(outer.exterior) if outer.geom_type == "Polygon" else outer.envelope
     edge = outer.exterior
     point = seed.representative_point()
@@ -493,6 +496,7 @@ def analyse_magnetic(
                             seed,
                             max_half_mm=settings.ring_search_max_mm,
                             known=(window, copper),  # type: ignore[arg-type]
+                            extent=extent,
                         ),
                     )
                 )
