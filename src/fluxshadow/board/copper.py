@@ -151,6 +151,55 @@ def _check_window(window: Sequence[float], what: str = "window") -> Window:
     return (vals[0], vals[1], vals[2], vals[3])
 
 
+def _runs_meeting(
+    coords: FloatArray, vidx: IntArray, chain: IntArray, reach: Window
+) -> tuple[IntArray, IntArray, IntArray]:
+    """Cut polylines to their runs of consecutive segments whose boxes meet ``reach``.
+
+    Parameters
+    ----------
+    coords : ndarray of float, shape (n, 2)
+        Vertices of all polylines, one after another (mm).
+    vidx : ndarray of int, shape (n,)
+        An index carried along with each vertex (here: into the record's vertex table).
+    chain : ndarray of int, shape (n,)
+        Polyline of each vertex, non-decreasing; each polyline has at least 2 vertices.
+    reach : tuple of 4 floats
+        Box ``(x0, y0, x1, y1)`` in mm.
+
+    Returns
+    -------
+    vidx : ndarray of int, shape (m,)
+        The carried index of every vertex kept, run after run.
+    piece : ndarray of int, shape (m,)
+        Run of each kept vertex, numbered 0, 1, ... in order.
+    piece_chain : ndarray of int, shape (p,)
+        Polyline each run was cut from.
+    """
+    same = chain[1:] == chain[:-1]
+    a, b = coords[:-1], coords[1:]
+    lo, hi = np.minimum(a, b), np.maximum(a, b)
+    ok = (
+        same
+        & (lo[:, 0] <= reach[2])
+        & (hi[:, 0] >= reach[0])
+        & (lo[:, 1] <= reach[3])
+        & (hi[:, 1] >= reach[1])
+    )
+    seg = np.flatnonzero(ok)
+    if seg.size == 0:
+        empty = np.zeros(0, dtype=np.int64)
+        return empty, empty, empty
+    start = np.ones(seg.size, dtype=bool)
+    start[1:] = seg[1:] != seg[:-1] + 1
+    first = seg[start]
+    last = seg[np.r_[np.flatnonzero(start)[1:] - 1, seg.size - 1]]
+    nvert = last - first + 2
+    keep = _ranges(first, nvert)
+    piece = np.repeat(np.arange(first.size), nvert)
+    return vidx[keep], piece, chain[first]
+
+
 def _grow(window: Window, by_mm: float) -> Window:
     return (window[0] - by_mm, window[1] - by_mm, window[2] + by_mm, window[3] + by_mm)
 
@@ -485,10 +534,13 @@ class LayerArtwork:
     ) -> tuple[ObjArray, IntArray]:
         """Chains of continuing circle tracks, buffered in one call.
 
-        With a clip window, chains reaching out of it are first cut to the window grown by
-        the largest radius: every point of the window within a radius of the chain is
-        within that radius of the cut chain, so the buffer is unchanged inside the window,
-        and a long polyline that merely passes through costs only its local part.
+        With a clip window, each chain keeps only its runs of consecutive segments whose
+        boxes meet the window grown by the largest radius: a dropped segment's buffer cannot
+        reach the window, and a kept run has the chain's own vertices, so its joins (and the
+        buffer inside the window) are the whole chain's. A long polyline that merely passes
+        through costs only its local part. (Cutting with ``shapely.intersection`` instead
+        nodes a self-overlapping chain and turns joins into caps, whose arcs are
+        discretised differently.)
         """
         diam = self._ap_diameter[self._aperture[objs]]
         keep = diam > 0.0
@@ -507,22 +559,18 @@ class LayerArtwork:
         chain = np.cumsum(~cont) - 1
         counts = ve - vs - cont.astype(np.int64)
         vidx = _ranges(vs + cont, counts)
-        lines = shapely.linestrings(verts[vidx], indices=np.repeat(chain, counts))
         heads = np.flatnonzero(~cont)
         radius = 0.5 * diam[heads]
+        piece = np.repeat(chain, counts)
+        piece_chain = np.arange(len(heads))
         if clip is not None:
             reach = _grow(clip, float(radius.max()) + _CLIP_MARGIN_MM)
-            b = shapely.bounds(lines)
-            out = (
-                (b[:, 0] < reach[0])
-                | (b[:, 1] < reach[1])
-                | (b[:, 2] > reach[2])
-                | (b[:, 3] > reach[3])
-            )
-            if np.any(out):
-                lines[out] = shapely.intersection(lines[out], shapely.box(*reach))
-        pieces = shapely.buffer(lines, radius, quad_segs=self._quad_segs)
-        return np.asarray(pieces, dtype=object), runs[heads]
+            vidx, piece, piece_chain = _runs_meeting(verts[vidx], vidx, piece, reach)
+            if vidx.size == 0:
+                return _concat([], [])
+        lines = shapely.linestrings(verts[vidx], indices=piece)
+        pieces = shapely.buffer(lines, radius[piece_chain], quad_segs=self._quad_segs)
+        return np.asarray(pieces, dtype=object), runs[heads[piece_chain]]
 
     def _swept_track_pieces(self, objs: IntArray, runs: IntArray) -> tuple[ObjArray, IntArray]:
         """Segments of tracks drawn with non-circular apertures, as convex hulls."""
