@@ -66,3 +66,17 @@ def realboard() -> Callable[[str], Path]:
         return path
 
     return get
+
+
+@pytest.fixture(scope="session")
+def realboard_odb() -> Callable[[str], Path]:
+    """Factory: ``realboard_odb("thunderscope-rev5.3")`` gives that folder of
+    ``../shared/realboards-odb`` or skips the test when absent."""
+
+    def get(name: str) -> Path:
+        path = REALBOARDS_ODB / name
+        if not path.is_dir():
+            pytest.skip(f"../shared/realboards-odb/{name} is not present")
+        return path
+
+    return get

@@ -362,8 +362,9 @@ def test_read_odb_small_job(tmp_path: Path) -> None:
     # CONTEXT=MISC rows are not copper even when typed SIGNAL.
     assert pkg.copper_names == ("TOP", "GND", "BOT")
     assert [r.negative_image for r in pkg.copper] == [False, True, False]
+    # A header-only .Z file (ncompress format: magic 1f 9d, flags byte) decodes to no text.
     assert pkg.copper[2].n_objects == 0
-    assert any("compressed" in n.message and "features.Z" in n.file for n in pkg.notices)
+    assert pkg.copper[2].source.endswith("features.Z")
     assert pkg.profile_ring.shape == (5, 2)
     assert shapely.Polygon(pkg.profile_ring).area == pytest.approx(1200.0)
     by_ref = {p.ref: p for p in pkg.placements}

@@ -13,9 +13,9 @@ import hashlib
 import math
 import os
 from collections.abc import Callable, Sequence
-from dataclasses import replace
+from dataclasses import dataclass, replace
 from pathlib import Path
-from typing import Any
+from typing import Any, Literal
 
 import numpy as np
 import numpy.typing as npt
@@ -25,7 +25,7 @@ from scipy.spatial import cKDTree
 from fluxshadow.board.copper import LayerArtwork
 from fluxshadow.board.magnetics import Magnetic, PartOverride, identify_magnetics
 from fluxshadow.board.model import Board, FileUse, Layer
-from fluxshadow.board.outline import BoardOutline, outline_from_artwork
+from fluxshadow.board.outline import BoardOutline, outline_from_artwork, outline_from_rings
 from fluxshadow.board.pads import pad_centres
 from fluxshadow.board.polarity import flash_sizes_mm, looks_negative
 from fluxshadow.board.registration import FrameFit, FrameOverride, apply_fit, fit_frame, invert_fit
@@ -36,7 +36,8 @@ from fluxshadow.io.excellon import read_excellon
 from fluxshadow.io.gerber import read_gerber, read_gerber_header
 from fluxshadow.io.identify import LayerIdentity, identify_layer, order_copper_layers
 from fluxshadow.io.jobfile import read_job_file
-from fluxshadow.io.package import DEFAULT_LIMITS, Limits, open_package
+from fluxshadow.io.odb import read_odb
+from fluxshadow.io.package import DEFAULT_LIMITS, Limits, find_odb_jobs, open_package
 from fluxshadow.io.placement import join_bom, read_bom, read_placement
 from fluxshadow.io.records import (
     ArtworkRecord,
@@ -48,9 +49,13 @@ from fluxshadow.io.records import (
     PlacementRow,
 )
 
-__all__ = ["load_package", "with_config_limits"]
+__all__ = ["ROUTES", "Route", "load_package", "with_config_limits"]
 
 Progress = Callable[[str], None]
+Route = Literal["auto", "gerber", "odb"]
+ROUTES: tuple[str, ...] = ("auto", "gerber", "odb")
+"""Input routes: ``auto`` reads an ODB++ job when the package holds one, else the Gerber
+files; ``gerber`` and ``odb`` force one route."""
 
 
 def _sha256(path: Path) -> str:
@@ -190,8 +195,13 @@ def load_package(
     config: Config | str | os.PathLike[str] | None = None,
     limits: Limits = DEFAULT_LIMITS,
     progress: Progress | None = None,
+    route: Route = "auto",
 ) -> Board:
     """Read a fabrication package (folder, .zip or .tgz) into a layered board model.
+
+    Two input routes give the same model: Gerber/Excellon files with a placement table,
+    or an ODB++ job (a folder with ``matrix/matrix``, also inside the package or an
+    archive), whose matrix orders the layers and whose component layers place the parts.
 
     Parameters
     ----------
@@ -206,6 +216,9 @@ def load_package(
         found only inside an archive applies to the files, not to unpacking it).
     progress : callable, optional
         Called with a short message before each stage (for a progress display).
+    route : {"auto", "gerber", "odb"}
+        Which files to read; ``auto`` takes the ODB++ job when there is one (and says so
+        in a notice when Gerber files were left unread).
 
     Returns
     -------
@@ -225,7 +238,7 @@ def load_package(
         limits = with_config_limits(limits, early)
     with open_package(path, limits=limits) as pkg:
         try:
-            return _load(pkg, config, progress, limits)
+            return _load(pkg, config, progress, limits, route)
         except FluxshadowError as exc:
             if Path(pkg.root) == Path(pkg.display_root):
                 raise
@@ -261,16 +274,161 @@ def _early_config(
     return load_config(found) if found is not None else None
 
 
+@dataclass(kw_only=True)
+class _LayerMeta:
+    """How one copper layer was found (either route)."""
+
+    source: str
+    index: int
+    side: Literal["top", "inner", "bottom"]
+    identified_by: str
+    detail: str
+    polarity: str
+    polarity_from: str
+
+
+@dataclass(kw_only=True)
+class _Inputs:
+    """What a route read from the package, before stack-up, registration and magnetics."""
+
+    route: str
+    route_detail: str
+    records: list[ArtworkRecord]
+    meta: list[_LayerMeta]
+    extent: shapely.Polygon
+    outline: BoardOutline | None
+    paste: dict[str, list[ArtworkRecord]]
+    drills: list[DrillRecord]
+    job: JobRecord | None
+    placement: list[PlacementRow]
+    same_frame: bool
+    uses: dict[str, str]
+    notices: list[Notice]
+    assumptions: list[str]
+    hashes: dict[str, str]
+
+
+def _choose_route(pkg: PackageFiles, route: Route) -> tuple[str, str | None, str]:
+    """``(route, odb_job_folder, why)`` for a package; the job folder is relative."""
+    if route not in ROUTES:
+        msg = f"route must be one of {', '.join(ROUTES)}; got {route!r}"
+        raise InputError(msg)
+    jobs = find_odb_jobs(pkg.root)
+    if route == "gerber":
+        return "gerber", None, "asked for (--route gerber)"
+    if len(jobs) > 1:
+        msg = (
+            f"package must hold one ODB++ job (a folder with matrix/matrix); got {len(jobs)}: "
+            f"{', '.join(jobs)} (give the job folder itself)"
+        )
+        raise InputError(msg, file=pkg.display_root)
+    if route == "odb":
+        if not jobs:
+            msg = (
+                "package must hold an ODB++ job (a folder with matrix/matrix) for route odb; "
+                "got none"
+            )
+            raise InputError(msg, file=pkg.display_root)
+        return "odb", jobs[0], "asked for (--route odb)"
+    if jobs:
+        return "odb", jobs[0], f"ODB++ job found in {jobs[0]!r} (matrix/matrix)"
+    return "gerber", None, "no ODB++ job in the package"
+
+
+def _inside(rel: str, folder: str | None) -> bool:
+    if folder is None:
+        return False
+    return folder == "." or rel == folder or rel.startswith(folder.rstrip("/") + "/")
+
+
 def _load(
     pkg: PackageFiles,
     config: Config | str | os.PathLike[str] | None,
     progress: Progress | None,
     limits: Limits = DEFAULT_LIMITS,
+    route: Route = "auto",
 ) -> Board:
     say = progress or (lambda _msg: None)
-    root = Path(pkg.root)
-    cfg = _resolve_config(config, root)
+    cfg = _resolve_config(config, Path(pkg.root))
     limits = with_config_limits(limits, cfg)
+    chosen, job_dir, why = _choose_route(pkg, route)
+    if chosen == "odb":
+        assert job_dir is not None
+        inputs = _odb_inputs(pkg, job_dir, cfg, say, limits)
+    else:
+        inputs = _gerber_inputs(pkg, cfg, say, limits)
+    inputs.route_detail = why
+    return _assemble(pkg, inputs, cfg, say)
+
+
+def _other_files(pkg: PackageFiles, uses: dict[str, str]) -> None:
+    by_kind: dict[FileKind, list[str]] = {}
+    for rel, kind in sorted(pkg.files.items()):
+        by_kind.setdefault(kind, []).append(rel)
+    for rel in pkg.unclassified:
+        uses.setdefault(rel, "not classified (not read)")
+    for kind, rels in by_kind.items():
+        for rel in rels:
+            uses.setdefault(rel, f"{kind.value}: not used")
+
+
+def _read_table_files(
+    pkg: PackageFiles,
+    by_kind: dict[FileKind, list[str]],
+    limits: Limits,
+    uses: dict[str, str],
+    notices: list[Notice],
+    *,
+    placement_from_files: bool,
+) -> tuple[list[PlacementRow], list[BomRow], JobRecord | None]:
+    """Placement tables (when wanted), BOMs and the job file of a package."""
+    root = Path(pkg.root)
+    job: JobRecord | None = None
+    for rel in by_kind.get(FileKind.JOB, []):
+        if job is None:
+            job = read_job_file(root / rel)
+            uses[rel] = "job file: stack-up"
+        else:
+            uses[rel] = "job file (a second one; not used)"
+    placement: list[PlacementRow] = []
+    if placement_from_files:
+        tables: list[tuple[str, list[PlacementRow]]] = []
+        for rel in by_kind.get(FileKind.PLACEMENT, []):
+            rows, pn = read_placement(root / rel, max_bytes=limits.max_file_bytes)
+            notices.extend(pn)
+            tables.append((rel, rows))
+        placement, used_tables, pn2 = _pick_placement(tables)
+        notices.extend(pn2)
+        for rel, rows in tables:
+            uses[rel] = (
+                f"placement: {len(rows)} rows"
+                if rel in used_tables
+                else f"placement: {len(rows)} rows (not needed)"
+            )
+    else:
+        for rel in by_kind.get(FileKind.PLACEMENT, []):
+            uses[rel] = "placement: not used (the ODB++ components give the placement)"
+    bom_rows: list[BomRow] = []
+    for rel in by_kind.get(FileKind.BOM, []):
+        rows_b, bn = read_bom(root / rel, max_bytes=limits.max_file_bytes)
+        notices.extend(bn)
+        bom_rows.extend(rows_b)
+        uses[rel] = f"BOM: {len(rows_b)} designators"
+    for rel in by_kind.get(FileKind.CONFIG, []):
+        uses[rel] = "configuration"
+    return placement, bom_rows, job
+
+
+def _kinds(pkg: PackageFiles, skip: str | None = None) -> dict[FileKind, list[str]]:
+    by_kind: dict[FileKind, list[str]] = {}
+    for rel, kind in sorted(pkg.files.items()):
+        if not _inside(rel, skip):
+            by_kind.setdefault(kind, []).append(rel)
+    return by_kind
+
+
+def _gerber_inputs(pkg: PackageFiles, cfg: Config, say: Progress, limits: Limits) -> _Inputs:
+    root = Path(pkg.root)
 
     def gerber(rel: str) -> ArtworkRecord:
         return read_gerber(
@@ -287,11 +445,7 @@ def _load(
     assumptions: list[str] = []
     uses: dict[str, str] = {}
     hashes = {rel: _sha256(root / rel) for rel in sorted(pkg.files)}
-    by_kind: dict[FileKind, list[str]] = {}
-    for rel, kind in sorted(pkg.files.items()):
-        by_kind.setdefault(kind, []).append(rel)
-    for rel in pkg.unclassified:
-        uses[rel] = "not classified (not read)"
+    by_kind = _kinds(pkg)
 
     # --- layer identification
     say("identifying layers")
@@ -357,44 +511,11 @@ def _load(
             f"drill: {len(d.hole_xy)} holes, {len(d.slot_xy)} slots{span} "
             f"(plating from {d.plating_from})"
         )
-    job: JobRecord | None = None
-    for rel in by_kind.get(FileKind.JOB, []):
-        if job is None:
-            job = read_job_file(root / rel)
-            uses[rel] = "job file: stack-up"
-        else:
-            uses[rel] = "job file (a second one; not used)"
-    tables: list[tuple[str, list[PlacementRow]]] = []
-    for rel in by_kind.get(FileKind.PLACEMENT, []):
-        rows, pn = read_placement(root / rel, max_bytes=limits.max_file_bytes)
-        notices.extend(pn)
-        tables.append((rel, rows))
-    placement, used_tables, pn2 = _pick_placement(tables)
-    notices.extend(pn2)
-    for rel, rows in tables:
-        uses[rel] = (
-            f"placement: {len(rows)} rows"
-            if rel in used_tables
-            else f"placement: {len(rows)} rows (not needed)"
-        )
-    bom_rows: list[BomRow] = []
-    for rel in by_kind.get(FileKind.BOM, []):
-        rows_b, bn = read_bom(root / rel, max_bytes=limits.max_file_bytes)
-        notices.extend(bn)
-        bom_rows.extend(rows_b)
-        uses[rel] = f"BOM: {len(rows_b)} designators"
+    placement, bom_rows, job = _read_table_files(
+        pkg, by_kind, limits, uses, notices, placement_from_files=True
+    )
     if bom_rows:
         placement = join_bom(placement, bom_rows, notices=notices)
-    if not placement:
-        assumptions.append(
-            "placement: no placement file was found, so no magnetics can be located "
-            "(add the placement/centroid file to the package)"
-        )
-    for rel in by_kind.get(FileKind.CONFIG, []):
-        uses[rel] = "configuration"
-    for kind, rels in by_kind.items():
-        for rel in rels:
-            uses.setdefault(rel, f"{kind.value}: not used")
 
     # --- negative planes without a marker
     extent = _extent(outline, records)
@@ -402,12 +523,12 @@ def _load(
     outer = [records[0], records[-1]] if len(records) > 1 else records[:1]
     pad_xy = np.vstack([r.obj_xy[r.obj_kind == 0] for r in outer])
     pad_size = np.concatenate([flash_sizes_mm(r) for r in outer])
-    polarity: list[tuple[str, str]] = []
-    for ident, rec in zip(copper_ids, records, strict=True):
+    meta: list[_LayerMeta] = []
+    for i, (ident, rec) in enumerate(zip(copper_ids, records, strict=True)):
         if rec.negative_image and ident.polarity == "positive" and ident.polarity_from != "config":
-            polarity.append(("negative", "image-polarity"))
+            pol = ("negative", "image-polarity")
         elif ident.polarity == "negative" or rec.negative_image:
-            polarity.append(("negative", ident.polarity_from))
+            pol = ("negative", ident.polarity_from)
         elif ident.polarity_from in ("default",) and ident.side == "inner":
             ev = looks_negative(
                 rec,
@@ -417,73 +538,253 @@ def _load(
                 extent_area_mm2=float(extent.area),
             )
             if ev.negative:
-                polarity.append(("negative", "geometry"))
+                pol = ("negative", "geometry")
                 assumptions.append(
                     f"layer {ident.file}: read as a negative plane image because it looks "
                     f"like one ({ev.describe()}); if wrong, state it in [layers] as "
                     f'"{Path(ident.file).name}" = "copper:{ident.index}"'
                 )
             else:
-                polarity.append(("positive", ident.polarity_from))
+                pol = ("positive", ident.polarity_from)
         else:
-            polarity.append(("positive", ident.polarity_from))
+            pol = ("positive", ident.polarity_from)
+        meta.append(
+            _LayerMeta(
+                source=ident.file,
+                index=int(ident.index or i + 1),
+                side=ident.side
+                or ("top" if i == 0 else "bottom" if i == len(copper_ids) - 1 else "inner"),
+                identified_by=ident.identified_by,
+                detail=ident.detail,
+                polarity=pol[0],
+                polarity_from=pol[1],
+            )
+        )
+        if ident.identified_by in ("extension", "file-name"):
+            assumptions.append(
+                f"layer identity: {ident.file} taken as L{meta[-1].index} from its "
+                f"{ident.identified_by.replace('-', ' ')} only; confirm it or state it in [layers]"
+            )
+    _other_files(pkg, uses)
+    return _Inputs(
+        route="gerber",
+        route_detail="",
+        records=records,
+        meta=meta,
+        extent=extent,
+        outline=outline,
+        paste=paste,
+        drills=drills,
+        job=job,
+        placement=placement,
+        same_frame=False,
+        uses=uses,
+        notices=notices,
+        assumptions=assumptions,
+        hashes=hashes,
+    )
 
+
+def _odb_inputs(
+    pkg: PackageFiles, job_dir: str, cfg: Config, say: Progress, limits: Limits
+) -> _Inputs:
+    root = Path(pkg.root)
+
+    def rel(path: str) -> str:
+        try:
+            return Path(path).resolve().relative_to(root.resolve()).as_posix()
+        except ValueError:
+            return path
+
+    say(f"reading ODB++ job {job_dir}")
+    odb = read_odb(
+        root / job_dir,
+        max_bytes=limits.max_file_bytes,
+        max_objects=limits.max_objects,
+        max_vertices=limits.max_vertices,
+    )
+    notices: list[Notice] = list(pkg.notices) + list(odb.notices)
+    assumptions: list[str] = []
+    uses: dict[str, str] = {}
+    job_root = root / job_dir
+    hashes = {rel_: _sha256(root / rel_) for rel_ in sorted(pkg.files)}
+    for f in sorted(job_root.rglob("*")):
+        if f.is_file() and not f.is_symlink():
+            key = f.relative_to(root).as_posix()
+            hashes.setdefault(key, _sha256(f))
+            uses[key] = "odb++: not used"
+    matrix_rel = rel(str(job_root / "matrix" / "matrix"))
+    uses[matrix_rel] = f"odb++: matrix ({len(odb.matrix)} rows, step {odb.step})"
+    if not odb.copper:
+        msg = (
+            "an ODB++ job must have at least one copper layer (matrix rows with "
+            "CONTEXT=BOARD and TYPE=SIGNAL, POWER_GROUND or MIXED); got none"
+        )
+        raise InputError(msg, file=matrix_rel)
+    rows = {r.name: r for r in odb.matrix}
+    records = list(odb.copper)
+    meta: list[_LayerMeta] = []
+    n = len(records)
+    for i, (name, rec) in enumerate(zip(odb.copper_names, records, strict=True)):
+        row = rows[name]
+        source = rel(rec.source)
+        side: Literal["top", "inner", "bottom"] = (
+            "top" if i == 0 else "bottom" if i == n - 1 else "inner"
+        )
+        meta.append(
+            _LayerMeta(
+                source=source,
+                index=i + 1,
+                side=side,
+                identified_by="odb-matrix",
+                detail=(
+                    f"ODB++ matrix row {row.row} {row.name} ({row.type}, {row.polarity}) "
+                    f"of step {odb.step}"
+                ),
+                polarity="negative" if row.polarity == "NEGATIVE" else "positive",
+                polarity_from="odb-matrix",
+            )
+        )
+        uses[source] = f"odb++: copper L{i + 1} (matrix row {row.row} {row.name})"
+    outline = outline_from_rings(
+        odb.profile_rings, source=rel(str(job_root / "steps" / odb.step.lower() / "profile"))
+    )
+    if outline is not None:
+        uses[outline.source] = "odb++: step profile (board outline)"
+    else:
+        assumptions.append(
+            "board outline: the ODB++ step profile gave no closed shape; the extent of the "
+            "copper is used"
+        )
+    drills = list(getattr(odb, "drills", ()))
+    for d in drills:
+        uses[rel(d.source)] = f"odb++: drill, {len(d.hole_xy)} holes, {len(d.slot_xy)} slots"
+        notices.extend(d.notices)
+    placement = list(odb.placements)
+    for src in sorted({p.source for p in placement}):
+        uses[rel(src)] = "odb++: components (placement)"
+    placement = [replace(p, source=rel(p.source)) for p in placement]
+    by_kind = _kinds(pkg, skip=job_dir)
+    n_gerber = len(by_kind.get(FileKind.GERBER, [])) + len(by_kind.get(FileKind.EXCELLON, []))
+    if n_gerber:
+        notices.append(
+            Notice(
+                file=pkg.display_root,
+                line=None,
+                message=(
+                    f"the package also holds {n_gerber} Gerber/Excellon file(s) beside the "
+                    f"ODB++ job; only the ODB++ job was read (--route gerber reads the others)"
+                ),
+            )
+        )
+        for kind in (FileKind.GERBER, FileKind.EXCELLON):
+            for r in by_kind.get(kind, []):
+                uses[r] = f"{kind.value}: not read (ODB++ route)"
+    _placement_files, bom_rows, job = _read_table_files(
+        pkg, by_kind, limits, uses, notices, placement_from_files=False
+    )
+    if bom_rows:
+        placement = join_bom(placement, bom_rows, notices=notices)
+    if cfg.layers:
+        notices.append(
+            Notice(
+                file=str(cfg.source),
+                line=None,
+                message="[layers] maps Gerber files; the ODB++ route takes layers from the matrix",
+            )
+        )
+    _other_files(pkg, uses)
+    return _Inputs(
+        route="odb",
+        route_detail="",
+        records=records,
+        meta=meta,
+        extent=_extent(outline, records),
+        outline=outline,
+        paste={"top": [], "bottom": []},
+        drills=drills,
+        job=job,
+        placement=placement,
+        same_frame=True,
+        uses=uses,
+        notices=notices,
+        assumptions=assumptions,
+        hashes=hashes,
+    )
+
+
+def _assemble(pkg: PackageFiles, inputs: _Inputs, cfg: Config, say: Progress) -> Board:
+    records = inputs.records
+    notices = inputs.notices
+    assumptions = inputs.assumptions
+    uses = inputs.uses
+    placement = inputs.placement
+    if not placement:
+        assumptions.append(
+            "placement: no placement file was found, so no magnetics can be located "
+            "(add the placement/centroid file to the package)"
+        )
     artworks = tuple(
-        LayerArtwork(rec, negative=(pol == "negative"), plane_extent=extent)
-        for rec, (pol, _src) in zip(records, polarity, strict=True)
+        LayerArtwork(rec, negative=(m.polarity == "negative"), plane_extent=inputs.extent)
+        for rec, m in zip(records, inputs.meta, strict=True)
     )
 
     # --- stack-up
-    stackup, stack_assumptions = resolve_stackup(len(copper_ids), job=job, config=cfg)
+    stackup, stack_assumptions = resolve_stackup(len(records), job=inputs.job, config=cfg)
     assumptions.extend(stack_assumptions)
 
     layers = tuple(
         Layer(
-            name=f"L{ident.index}",
-            index=int(ident.index or i + 1),
-            source=ident.file,
-            identified_by=ident.identified_by,
-            detail=ident.detail,
-            side=ident.side
-            or ("top" if i == 0 else "bottom" if i == len(copper_ids) - 1 else "inner"),
-            polarity=pol,  # type: ignore[arg-type]
-            polarity_from=src,
+            name=f"L{m.index}",
+            index=m.index,
+            source=m.source,
+            identified_by=m.identified_by,
+            detail=m.detail,
+            side=m.side,
+            polarity=m.polarity,  # type: ignore[arg-type]
+            polarity_from=m.polarity_from,
             z_top_mm=stackup.z_top_mm[i],
             thickness_mm=stackup.thickness_mm[i],
         )
-        for i, (ident, (pol, src)) in enumerate(zip(copper_ids, polarity, strict=True))
+        for i, m in enumerate(inputs.meta)
     )
     for lay in layers:
-        uses[lay.source] = f"copper {lay.name} ({lay.side}, {lay.polarity})"
-        if lay.identified_by in ("extension", "file-name"):
-            assumptions.append(
-                f"layer identity: {lay.source} taken as {lay.name} from its "
-                f"{lay.identified_by.replace('-', ' ')} only; confirm it or state it in [layers]"
-            )
+        uses[lay.source] = (
+            f"copper {lay.name} ({lay.side}, {lay.polarity})"
+            if inputs.route == "gerber"
+            else uses.get(lay.source, f"copper {lay.name}") + f", {lay.side}, {lay.polarity}"
+        )
 
     # --- registration
     say("registering placement to artwork")
     pads: dict[str, npt.NDArray[np.float64]] = {}
     for side, recs_side, copper_rec in (
-        ("top", paste["top"], records[0]),
-        ("bottom", paste["bottom"], records[-1] if len(records) > 1 else None),
+        ("top", inputs.paste["top"], records[0]),
+        ("bottom", inputs.paste["bottom"], records[-1] if len(records) > 1 else None),
     ):
         source = recs_side or ([copper_rec] if copper_rec is not None else [])
         arrays = [pad_centres(r) for r in source]
         pads[side] = np.vstack(arrays) if arrays else np.empty((0, 2))
     top_rows = [r for r in placement if r.side == "top"]
     bot_rows = [r for r in placement if r.side == "bottom"]
+    override = _frame_override(cfg)
+    same_frame = inputs.same_frame and override is None
+    if same_frame:
+        # ODB++ components share the artwork's frame; the fit only scores that.
+        override = FrameOverride(dx_mm=0.0, dy_mm=0.0, bottom_mirror=False)
     fit = fit_frame(
         np.array([(r.x_mm, r.y_mm) for r in top_rows]).reshape(-1, 2),
         np.array([(r.x_mm, r.y_mm) for r in bot_rows]).reshape(-1, 2),
         pads["top"],
         pads["bottom"],
-        override=_frame_override(cfg),
+        override=override,
     )
+    if same_frame:
+        fit = replace(fit, method="package frame")
     notices.extend(fit.notices)
     if (
         placement
-        and fit.method != "config"
+        and fit.method not in ("config", "package frame")
         and (fit.total == 0 or fit.score < 0.5 or not math.isfinite(fit.residual_mm))
     ):
         assumptions.append(
@@ -515,28 +816,31 @@ def _load(
     for m in magnetics:
         assumptions.extend(f"{m.ref}: {a}" for a in m.assumptions)
 
+    every = set(pkg.files) | set(pkg.unclassified) | set(inputs.hashes) | set(uses)
     files = tuple(
         FileUse(
             file=rel,
             kind=pkg.files.get(rel, FileKind.OTHER).value,
             use=uses.get(rel, "not used"),
         )
-        for rel in sorted(set(pkg.files) | set(pkg.unclassified))
+        for rel in sorted(every)
     )
     return Board(
         package=pkg.display_root,
+        route=inputs.route,
+        route_detail=inputs.route_detail,
         layers=layers,
         magnetics=magnetics,
         excluded=result.excluded,
         frame_fit=fit,
         stackup=stackup,
-        outline=outline,
-        drills=tuple(drills),
+        outline=inputs.outline,
+        drills=tuple(inputs.drills),
         placement=tuple(placement),
         files=files,
         notices=tuple(notices),
         assumptions=tuple(assumptions),
         artworks=artworks,
-        input_hashes=hashes,
+        input_hashes=inputs.hashes,
         config=cfg,
     )

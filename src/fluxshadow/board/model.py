@@ -85,6 +85,11 @@ class Board:
     ----------
     package : str
         The folder or archive as given.
+    route : str
+        The input route read: ``"gerber"`` (Gerber/Excellon files and a placement
+        table) or ``"odb"`` (an ODB++ job).
+    route_detail : str
+        Why that route was taken.
     layers : tuple of Layer
         Copper layers, top to bottom.
     magnetics : tuple of Magnetic
@@ -125,6 +130,8 @@ class Board:
     artworks: tuple[LayerArtwork, ...] = field(repr=False)
     input_hashes: dict[str, str] = field(default_factory=dict, repr=False)
     config: Config = field(default_factory=Config, repr=False)
+    route: str = "gerber"
+    route_detail: str = ""
 
     def layer(self, layer: str | int | Layer) -> Layer:
         """The copper layer named ``"L<n>"``, with 1-based index ``n``, or by its file name.

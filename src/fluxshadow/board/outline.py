@@ -7,15 +7,17 @@ bounded by drawn lines are cut-outs.
 
 from __future__ import annotations
 
+from collections.abc import Sequence
 from dataclasses import dataclass
 
 import numpy as np
+import numpy.typing as npt
 import shapely
 from shapely.geometry.base import BaseGeometry
 
 from fluxshadow.io.records import REGION, TRACK, ArtworkRecord
 
-__all__ = ["BoardOutline", "outline_from_artwork"]
+__all__ = ["BoardOutline", "outline_from_artwork", "outline_from_rings"]
 
 _SNAP_MM = 0.01
 """Drawn outline segments whose ends lie this close are joined (common practice: outline
@@ -54,14 +56,38 @@ def outline_from_artwork(record: ArtworkRecord) -> BoardOutline | None:
     BoardOutline or None
         ``None`` when the lines enclose no area.
     """
-    lines = []
+    rings = []
     rvs = record.ring_vertex_start
     ors = record.obj_ring_start
     for i in np.flatnonzero((record.obj_kind == TRACK) | (record.obj_kind == REGION)):
         for r in range(int(ors[i]), int(ors[i + 1])):
-            pts = record.vertices[int(rvs[r]) : int(rvs[r + 1])]
-            if len(pts) >= 2:
-                lines.append(shapely.linestrings(pts))
+            rings.append(record.vertices[int(rvs[r]) : int(rvs[r + 1])])
+    return outline_from_rings(rings, source=record.source)
+
+
+def outline_from_rings(
+    rings: Sequence[npt.NDArray[np.float64]], *, source: str
+) -> BoardOutline | None:
+    """Polygonise outline centre lines given as polylines or closed contours.
+
+    The largest enclosed face is the board; faces inside it that no other inner face
+    contains are cut-outs. Used for a profile artwork's tracks and regions and for the
+    contours of an ODB++ step profile (whose hole contours become cut-outs).
+
+    Parameters
+    ----------
+    rings : sequence of ndarray, shape (n, 2)
+        Polylines or closed contours in the artwork frame (mm); those with fewer than
+        two points are ignored.
+    source : str
+        The file they came from.
+
+    Returns
+    -------
+    BoardOutline or None
+        ``None`` when the lines enclose no area.
+    """
+    lines = [shapely.linestrings(pts) for pts in rings if len(pts) >= 2]
     if not lines:
         return None
     merged = shapely.union_all(shapely.set_precision(np.array(lines), _SNAP_MM))
@@ -82,4 +108,4 @@ def outline_from_artwork(record: ArtworkRecord) -> BoardOutline | None:
     board = outer
     if cutouts:
         board = shapely.difference(outer, shapely.union_all(cutouts))
-    return BoardOutline(board=board, cutouts=tuple(cutouts), source=record.source)
+    return BoardOutline(board=board, cutouts=tuple(cutouts), source=source)

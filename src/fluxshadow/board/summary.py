@@ -71,6 +71,7 @@ def stack_summary(board: Board, *, progress: Callable[[str], None] | None = None
         )
     st = board.stackup
     out = _common(board, "stack")
+    out["route"] = {"name": board.route, "why": board.route_detail}
     out["layers"] = layers
     out["stackup"] = {
         "source": st.source,

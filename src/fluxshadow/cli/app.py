@@ -61,6 +61,14 @@ class CheckFormat(StrEnum):
     html = "html"
 
 
+class RouteChoice(StrEnum):
+    """Which files of a package are read."""
+
+    auto = "auto"
+    gerber = "gerber"
+    odb = "odb"
+
+
 class FailOn(StrEnum):
     """Lowest unwaived severity that makes ``check`` exit with 1."""
 
@@ -91,6 +99,14 @@ ConfigOpt = Annotated[
 OutputOpt = Annotated[
     Path | None, typer.Option("--output", "-o", help="Write the output to this file.")
 ]
+RouteOpt = Annotated[
+    RouteChoice,
+    typer.Option(
+        "--route",
+        help="Input route: odb reads an ODB++ job, gerber the Gerber/Excellon files; auto "
+        "takes the ODB++ job when the package holds one.",
+    ),
+]
 
 
 def _fail(exc: Exception) -> typer.Exit:
@@ -99,12 +115,12 @@ def _fail(exc: Exception) -> typer.Exit:
     return typer.Exit(code=2)
 
 
-def _load(package: Path, config: Path | None) -> Board:
+def _load(package: Path, config: Path | None, route: RouteChoice = RouteChoice.auto) -> Board:
     def say(msg: str) -> None:
         if sys.stderr.isatty():
             _err.print(f"[dim]{msg}...[/]")
 
-    return load_package(package, config=config, progress=say)
+    return load_package(package, config=config, progress=say, route=route.value)
 
 
 def _emit(text: str, output: Path | None) -> None:
@@ -130,9 +146,10 @@ def _inventory(
     fmt: Format,
     summarize: Callable[[Board], dict[str, Any]],
     as_text: Callable[[dict[str, Any]], str],
+    route: RouteChoice,
 ) -> None:
     try:
-        summary = summarize(_load(package, config))
+        summary = summarize(_load(package, config, route))
         _emit(to_json(summary) if fmt is Format.json else as_text(summary), output)
     except (FluxshadowError, OSError) as exc:
         raise _fail(exc) from None
@@ -144,9 +161,10 @@ def stack(
     fmt: FormatOpt = Format.text,
     config: ConfigOpt = None,
     output: OutputOpt = None,
+    route: RouteOpt = RouteChoice.auto,
 ) -> None:
     """List the copper layers top to bottom: identity, polarity, area, stack-up."""
-    _inventory(package, config, output, fmt, stack_summary, stack_text)
+    _inventory(package, config, output, fmt, stack_summary, stack_text, route)
 
 
 @app.command()
@@ -155,9 +173,10 @@ def parts(
     fmt: FormatOpt = Format.text,
     config: ConfigOpt = None,
     output: OutputOpt = None,
+    route: RouteOpt = RouteChoice.auto,
 ) -> None:
     """List the power magnetics found and excluded, and the placement frame fit."""
-    _inventory(package, config, output, fmt, parts_summary, parts_text)
+    _inventory(package, config, output, fmt, parts_summary, parts_text, route)
 
 
 FailOpt = Annotated[
@@ -222,13 +241,14 @@ def check(
     output: OutputOpt = None,
     fail_on: FailOpt = FailOn.error,
     pictures: PicturesOpt = None,
+    route: RouteOpt = RouteChoice.auto,
 ) -> None:
     """Check every power magnetic: voids, rings, cut-outs, exposed traces.
 
     Exit codes: 0 no unwaived finding at or above --fail-on, 1 some, 2 bad input.
     """
     try:
-        board = _load(package, config)
+        board = _load(package, config, route)
         report = _check_board(board)
         _emit(_render(report, fmt, output, fail_on), output)
         _pictures(report, board, pictures)
@@ -286,6 +306,7 @@ def compare(
     fmt: FormatOpt = Format.text,
     config: ConfigOpt = None,
     output: OutputOpt = None,
+    route: RouteOpt = RouteChoice.auto,
 ) -> None:
     """Check the board as built and with a void filled or cut; show every figure that changes."""
     from fluxshadow.checks.compare import compare as run_compare
@@ -295,7 +316,7 @@ def compare(
     try:
         edits = [parse_edit(t, "fill") for t in fill or []]
         edits += [parse_edit(t, "cut") for t in cut or []]
-        board = _load(package, config)
+        board = _load(package, config, route)
         result = run_compare(board, edits)
         text = comparison_to_json(result) if fmt is Format.json else comparison_to_text(result)
         _emit(text, output)

@@ -32,35 +32,41 @@ How records map to :class:`~fluxshadow.io.records.ArtworkRecord` objects:
   become the contours; this keeps the holes open without erasing copper drawn earlier
   by other features (which a clear object would do).
 
-Compressed ``.Z`` files are reported with a Notice and not read.
+Any file may be stored as ``<name>.Z`` (Unix compress) or ``<name>.gz`` (gzip); the
+decoded size counts against ``max_bytes``. A compressed copper features, matrix or profile
+file that does not decode is an :class:`~fluxshadow.errors.InputError`; a components, EDA
+data or user-symbol file that does not decode is left out with a Notice.
+
+Nets come from ``steps/<step>/eda/data`` (``FID C`` records) when present; drill and rout
+layers become :class:`~fluxshadow.io.records.DrillRecord` s.
 """
 
 from __future__ import annotations
 
-import itertools
 import math
-import re
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Literal
 
 import numpy as np
 import numpy.typing as npt
-import shapely
-from shapely.geometry import LineString, MultiLineString, Polygon
-from shapely.geometry.base import BaseGeometry
-from shapely.ops import split
 
 from fluxshadow.errors import InputError, Notice, ParseError
-from fluxshadow.io._gerber_geom import (
-    Transform,
-    arc_points,
-    arc_segments,
-    circle_ring,
-    obround_ring,
-    rect_ring,
+from fluxshadow.io._gerber_geom import arc_points
+from fluxshadow.io._odb_drill import drill_record, span_of
+from fluxshadow.io._odb_eda import EdaNets, parse_eda_nets
+from fluxshadow.io._odb_features import MM_PER_INCH, FeatureReader, ParsedFeatures
+from fluxshadow.io._odb_symbols import closed, standard_symbol
+from fluxshadow.io._odb_text import (
+    CompressedFileError,
+    OdbLimits,
+    blocks,
+    find_file,
+    parse_float,
+    read_lines,
+    units_of,
 )
-from fluxshadow.io.records import FLASH, REGION, TRACK, ApertureRecord, ArtworkRecord, PlacementRow
+from fluxshadow.io.records import ArtworkRecord, DrillRecord, PlacementRow
 
 __all__ = [
     "COPPER_TYPES",
@@ -75,11 +81,6 @@ FloatArray = npt.NDArray[np.float64]
 
 COPPER_TYPES = ("SIGNAL", "POWER_GROUND", "MIXED")
 """Matrix layer types that hold copper (with ``CONTEXT=BOARD``)."""
-
-_MM_PER_INCH = 25.4
-_MM_PER_MIL = 0.0254
-_MM_PER_UM = 0.001
-_FULL_TURN = 2.0 * math.pi
 
 
 @dataclass(frozen=True, kw_only=True)
@@ -120,7 +121,9 @@ class OdbPackage:
         :data:`COPPER_TYPES`), in row order (top first).
     copper : tuple of ArtworkRecord
         One record per copper layer, same order; a ``NEGATIVE`` layer has
-        ``negative_image=True``.
+        ``negative_image=True``. ``obj_net``/``nets`` are filled from the EDA data
+        (``-1`` for features on ``$NONE$`` or not listed); every object made from one
+        feature carries that feature's net.
     profile_rings : tuple of ndarray (n, 2)
         Closed contours of the step profile in mm, islands first as written; holes follow
         their island.
@@ -132,6 +135,21 @@ class OdbPackage:
     units_in_info : str
         ``UNITS`` of ``misc/info`` ("" when absent).
     notices : tuple of Notice
+    drills : tuple of DrillRecord
+        One record per ``CONTEXT=BOARD`` row of ``TYPE=DRILL`` or ``TYPE=ROUT`` (row
+        order) whose features file exists; ``source`` is that file.
+    drill_names : tuple of str
+        Matrix names of those rows, same order.
+    stack_thickness_mm : tuple of float or None
+        Thicknesses in copper order with the dielectrics between (copper 1, dielectric,
+        copper 2, ..., mm) when the package carries them. Neither shared real package
+        does: matrix ``DIELECTRIC`` rows give only ``DIELECTRIC_TYPE`` (core/prepreg) and
+        layer ``attrlist`` files are empty or hold unit-less CAM defaults (the same
+        ``.copper_thickness`` on silk and mask layers, ``.layer_dielectric = 0``). No
+        thickness is derived from those, so this is always ``None`` for now; the stack-up
+        must come from the configuration or a job file.
+    nets_from : str
+        Where the nets came from: the EDA data file's path, or "" when there is none.
     """
 
     root: str
@@ -146,574 +164,122 @@ class OdbPackage:
     placements: tuple[PlacementRow, ...]
     units_in_info: str = ""
     notices: tuple[Notice, ...] = field(default_factory=tuple)
+    drills: tuple[DrillRecord, ...] = ()
+    drill_names: tuple[str, ...] = ()
+    stack_thickness_mm: tuple[float, ...] | None = None
+    nets_from: str = ""
 
 
-# --------------------------------------------------------------------------- text helpers
-
-
-def _read_lines(path: Path, notices: list[Notice]) -> list[str]:
-    try:
-        data = path.read_bytes()
-    except OSError as exc:
-        raise InputError(f"file must be readable; got {exc.strerror}", file=str(path)) from exc
-    try:
-        text = data.decode("utf-8")
-    except UnicodeDecodeError:
-        text = data.decode("latin-1")
-        notices.append(Notice(file=str(path), line=None, message="not UTF-8; read as Latin-1"))
-    return text.splitlines()
-
-
-def _units_of(lines: list[str]) -> Literal["mm", "inch"] | None:
-    for raw in lines[:50]:
-        s = raw.strip().upper()
-        if s.startswith("UNITS="):
-            return "mm" if s[6:].strip() == "MM" else "inch"
-        if s.startswith("U "):
-            return "mm" if s[2:].strip() == "MM" else "inch"
-    return None
-
-
-def _float(tok: str, path: str, line: int, stmt: str) -> float:
-    try:
-        v = float(tok)
-    except ValueError:
-        v = math.nan
-    if not math.isfinite(v):
-        raise ParseError(
-            f"a coordinate must be a finite number; got {tok!r}",
-            file=path,
-            line=line,
-            statement=stmt,
-        )
-    return v
-
-
-def _need(toks: list[str], n: int, what: str, path: str, line: int, stmt: str) -> None:
-    if len(toks) < n:
-        raise ParseError(
-            f"a {what} record must have at least {n} fields; got {len(toks)}",
-            file=path,
-            line=line,
-            statement=stmt,
-        )
-
-
-def _blocks(lines: list[str]) -> list[tuple[str, dict[str, str]]]:
-    """Parse ``NAME { KEY=VALUE ... }`` blocks (matrix, stephdr)."""
-    out: list[tuple[str, dict[str, str]]] = []
-    cur: dict[str, str] | None = None
-    name = ""
-    for raw in lines:
-        s = raw.strip()
-        if s.endswith("{"):
-            name = s[:-1].strip().upper()
-            cur = {}
-        elif s == "}":
-            if cur is not None:
-                out.append((name, cur))
-            cur = None
-        elif cur is not None and "=" in s:
-            k, _, v = s.partition("=")
-            cur[k.strip().upper()] = v.strip()
-    return out
-
-
-# --------------------------------------------------------------------------- symbols
-
-
-def _rounded_rect(w: float, h: float, r: float, corners: str) -> FloatArray:
-    """Closed CCW rectangle centred on the origin with corners ``corners`` rounded by r.
-
-    Corner numbers (from memory): 1 top right, 2 top left, 3 bottom left, 4 bottom right.
-    """
-    hw, hh = 0.5 * w, 0.5 * h
-    r = min(max(r, 0.0), hw, hh)
-    pts: list[FloatArray] = []
-    for k, (sx, sy, a0) in enumerate(
-        ((1.0, 1.0, 0.0), (-1.0, 1.0, 90.0), (-1.0, -1.0, 180.0), (1.0, -1.0, 270.0)), start=1
-    ):
-        if r > 0.0 and str(k) in corners:
-            n = max(arc_segments(r, 0.5 * math.pi), 2)
-            ang = np.radians(a0 + 90.0 * np.arange(n + 1) / n)
-            cx, cy = sx * (hw - r), sy * (hh - r)
-            pts.append(np.column_stack([cx + r * np.cos(ang), cy + r * np.sin(ang)]))
-        else:
-            pts.append(np.array([[sx * hw, sy * hh]], dtype=np.float64))
-    ring = np.vstack(pts)
-    return np.vstack([ring, ring[:1]])
-
-
-_NUM = r"(\d+(?:\.\d*)?|\.\d+)"
-_RE_R = re.compile(rf"r{_NUM}")
-_RE_S = re.compile(rf"s{_NUM}")
-_RE_RECT = re.compile(rf"rect{_NUM}x{_NUM}(?:x([rc]){_NUM}(?:x?(\d+))?)?")
-_RE_OVAL = re.compile(rf"oval{_NUM}x{_NUM}")
-_RE_DONUT_R = re.compile(rf"donut_r{_NUM}x{_NUM}")
-_RE_DONUT_S = re.compile(rf"donut_s{_NUM}x{_NUM}")
-_RE_DONUT_RC = re.compile(rf"donut_rc{_NUM}x{_NUM}x{_NUM}(?:xr{_NUM}(?:x?(\d+))?)?")
-
-
-def _chamfer_rect(w: float, h: float, c: float, corners: str) -> FloatArray:
-    hw, hh = 0.5 * w, 0.5 * h
-    c = min(max(c, 0.0), hw, hh)
-    pts: list[tuple[float, float]] = []
-    for k, (sx, sy) in enumerate(((1.0, 1.0), (-1.0, 1.0), (-1.0, -1.0), (1.0, -1.0)), start=1):
-        if c > 0.0 and str(k) in corners:
-            # CCW walk: arriving along the vertical (k odd) or horizontal edge.
-            first = (sx * hw, sy * (hh - c)) if sx * sy > 0 else (sx * (hw - c), sy * hh)
-            second = (sx * (hw - c), sy * hh) if sx * sy > 0 else (sx * hw, sy * (hh - c))
-            pts += [first, second]
-        else:
-            pts.append((sx * hw, sy * hh))
-    pts.append(pts[0])
-    return np.array(pts, dtype=np.float64)
-
-
-def standard_symbol(
-    name: str, scale: float
-) -> tuple[str, list[tuple[bool, FloatArray]], float | None] | None:
-    """Shape of a standard ODB++ symbol, or None when the name is not one we draw.
-
-    Parameters
-    ----------
-    name : str
-        Symbol name, e.g. ``"r254"``, ``"rect1500x1600xr375"``.
-    scale : float
-        mm per size unit (0.001 for um, 0.0254 for mil).
-
-    Returns
-    -------
-    (template, parts, circle_diameter_mm) or None
-        Parts are closed rings (mm) around the origin, ``(dark, ring)``.
-    """
-    if m := _RE_R.fullmatch(name):
-        d = float(m[1]) * scale
-        return "C", [(True, circle_ring(0.0, 0.0, 0.5 * d))], d
-    if m := _RE_S.fullmatch(name):
-        s = float(m[1]) * scale
-        return "R", [(True, rect_ring(0.0, 0.0, s, s))], None
-    if m := _RE_RECT.fullmatch(name):
-        w, h = float(m[1]) * scale, float(m[2]) * scale
-        if m[3] is None:
-            return "R", [(True, rect_ring(0.0, 0.0, w, h))], None
-        corners = m[5] or "1234"
-        rr = float(m[4]) * scale
-        ring = _rounded_rect(w, h, rr, corners) if m[3] == "r" else _chamfer_rect(w, h, rr, corners)
-        return "P", [(True, ring)], None
-    if m := _RE_OVAL.fullmatch(name):
-        w, h = float(m[1]) * scale, float(m[2]) * scale
-        return "O", [(True, obround_ring(w, h))], None
-    if m := _RE_DONUT_R.fullmatch(name):
-        od, idia = float(m[1]) * scale, float(m[2]) * scale
-        parts = [(True, circle_ring(0.0, 0.0, 0.5 * od))]
-        if idia > 0.0:
-            parts.append((False, circle_ring(0.0, 0.0, 0.5 * idia)))
-        return "donut_r", parts, None
-    if m := _RE_DONUT_S.fullmatch(name):
-        od, idia = float(m[1]) * scale, float(m[2]) * scale
-        parts = [(True, rect_ring(0.0, 0.0, od, od))]
-        if idia > 0.0:
-            parts.append((False, rect_ring(0.0, 0.0, idia, idia)))
-        return "donut_s", parts, None
-    if m := _RE_DONUT_RC.fullmatch(name):
-        w, h, lw = float(m[1]) * scale, float(m[2]) * scale, float(m[3]) * scale
-        rr = float(m[4]) * scale if m[4] else 0.0
-        corners = m[5] or "1234"
-        parts = [(True, _rounded_rect(w, h, rr, corners))]
-        if w > 2 * lw and h > 2 * lw:
-            parts.append((False, _rounded_rect(w - 2 * lw, h - 2 * lw, rr - lw, corners)))
-        return "donut_rc", parts, None
-    return None
-
-
-# --------------------------------------------------------------------------- features
-
-
-@dataclass
-class _Obj:
-    kind: int
-    dark: bool
-    xy: tuple[float, float]
-    aperture: int = -1
-    rings: list[FloatArray] = field(default_factory=list)
-
-
-class _Reader:
-    """Shared state of one job: user-symbol cache and notices."""
-
-    def __init__(self, root: Path) -> None:
-        self.root = root
-        self.notices: list[Notice] = []
-        self.user_symbols: dict[str, list[tuple[bool, FloatArray]] | None] = {}
-        self.no_units: list[str] = []
-        self._depth = 0
-
-    def note(self, file: str, line: int | None, message: str) -> None:
-        self.notices.append(Notice(file=file, line=line, message=message))
-
-    # -- user symbols -------------------------------------------------------------
-
-    def user_symbol(self, name: str) -> list[tuple[bool, FloatArray]] | None:
-        """Parts (mm, untransformed) of ``symbols/<name>/features``, read once."""
-        if name in self.user_symbols:
-            return self.user_symbols[name]
-        folder = self.root / "symbols" / name.lower()
-        if not folder.is_dir() and (self.root / "symbols" / name).is_dir():
-            folder = self.root / "symbols" / name
-        path = folder / "features"
-        if not path.is_file():
-            if (folder / "features.Z").is_file():
-                self.note(str(folder / "features.Z"), None, "compressed symbol not read")
-            self.user_symbols[name] = None
-            return None
-        if self._depth > 8:
-            self.note(str(path), None, "symbols nested deeper than 8 levels; not drawn")
-            self.user_symbols[name] = None
-            return None
-        self.user_symbols[name] = None  # guards self-reference
-        self._depth += 1
-        try:
-            apertures, objs, _units = self.features(path)
-        finally:
-            self._depth -= 1
-        parts: list[tuple[bool, FloatArray]] = []
-        for o in objs:
-            if o.kind == FLASH:
-                ap = apertures[o.aperture]
-                for dk, ring in ap.parts:
-                    if dk:
-                        parts.append((o.dark, ring + np.asarray(o.xy)))
-            elif o.kind == TRACK:
-                ap = apertures[o.aperture]
-                line = o.rings[0]
-                if ap.circle_diameter_mm is not None:
-                    geom: BaseGeometry = LineString(line).buffer(0.5 * ap.circle_diameter_mm)
-                else:
-                    hull = np.vstack([r for dk, r in ap.parts if dk])
-                    segs = [
-                        shapely.convex_hull(shapely.multipoints(np.vstack([hull + a, hull + b])))
-                        for a, b in itertools.pairwise(line)
-                    ]
-                    geom = shapely.union_all(segs)
-                for poly in _polygons(geom):
-                    parts += [(o.dark, r) for r in _hole_free_rings(poly)]
-            else:
-                parts += [(o.dark, r) for r in o.rings]
-        self.user_symbols[name] = parts
-        return parts
-
-    # -- features files -----------------------------------------------------------
-
-    def features(
-        self, path: Path
-    ) -> tuple[list[ApertureRecord], list[_Obj], Literal["mm", "inch"]]:
-        """Parse one features file into apertures and objects (mm)."""
-        src = str(path)
-        lines = _read_lines(path, self.notices)
-        units = _units_of(lines)
-        if units is None:
-            self.no_units.append(src)
-            units = "inch"
-        coord = 1.0 if units == "mm" else _MM_PER_INCH
-        size_default = _MM_PER_UM if units == "mm" else _MM_PER_MIL
-        symbols: dict[int, tuple[str, float]] = {}
-        apertures: list[ApertureRecord] = []
-        ap_index: dict[tuple[int, bool, float], int] = {}
-        skipped: dict[str, int] = {}
-        objs: list[_Obj] = []
-
-        def aperture(sym: int, mirror: bool, cw_deg: float, ln: int, stmt: str) -> int | None:
-            key = (sym, mirror, round(cw_deg % 360.0, 9))
-            if key in ap_index:
-                return ap_index[key]
-            if sym not in symbols:
-                raise ParseError(
-                    f"symbol number must be defined by a $ line; got {sym}",
-                    file=src,
-                    line=ln,
-                    statement=stmt,
-                )
-            name, scale = symbols[sym]
-            std = standard_symbol(name, scale)
-            if std is not None:
-                template, parts, circle = std
-            else:
-                user = self.user_symbol(name)
-                if user is None:
-                    skipped[name] = skipped.get(name, 0) + 1
-                    return None
-                template, parts, circle = name, user, None
-            t = Transform(mirror, (-cw_deg) % 360.0, 1.0)
-            if not t.is_identity:
-                parts = [(dk, t.apply(r)) for dk, r in parts]
-            ap_index[key] = len(apertures)
-            apertures.append(
-                ApertureRecord(
-                    code=sym, template=template, parts=tuple(parts), circle_diameter_mm=circle
-                )
-            )
-            return ap_index[key]
-
-        surf: _Obj | None = None
-        contours: list[tuple[bool, list[FloatArray]]] = []  # (is_island, vertex chunks)
-        for ln, raw in enumerate(lines, start=1):
-            stmt = raw.split(";", 1)[0].strip()
-            if not stmt or stmt.startswith("#"):
-                continue
-            toks = stmt.split()
-            head = toks[0]
-            if surf is not None:
-                if head == "OB":
-                    _need(toks, 4, "OB", src, ln, stmt)
-                    p = [_float(t, src, ln, stmt) * coord for t in toks[1:3]]
-                    contours.append((toks[3].upper() != "H", [np.array([p])]))
-                elif head == "OS" and contours:
-                    _need(toks, 3, "OS", src, ln, stmt)
-                    p = [_float(t, src, ln, stmt) * coord for t in toks[1:3]]
-                    contours[-1][1].append(np.array([p]))
-                elif head == "OC" and contours:
-                    _need(toks, 6, "OC", src, ln, stmt)
-                    xe, ye, xc, yc = (_float(t, src, ln, stmt) * coord for t in toks[1:5])
-                    x0, y0 = contours[-1][1][-1][-1]
-                    ccw = toks[5].upper() != "Y"
-                    full = math.hypot(xe - x0, ye - y0) < 1e-12
-                    pts = arc_points(x0, y0, xe, ye, xc, yc, ccw=ccw, full_circle=full)
-                    contours[-1][1].append(pts)
-                elif head == "OE":
-                    pass
-                elif head == "SE":
-                    surf.rings = _surface_rings(contours)
-                    if surf.rings:
-                        surf.xy = (float(surf.rings[0][0, 0]), float(surf.rings[0][0, 1]))
-                        objs.append(surf)
-                    surf = None
-                    contours = []
-                else:
-                    raise ParseError(
-                        "a surface record must be OB, OS, OC, OE or SE; got " + repr(head),
-                        file=src,
-                        line=ln,
-                        statement=stmt,
-                    )
-                continue
-            if head.startswith("$") and len(toks) >= 2:
-                try:
-                    num = int(head[1:])
-                except ValueError:
-                    continue
-                scale = size_default
-                if len(toks) >= 3 and toks[2].upper() in ("I", "M"):
-                    scale = _MM_PER_MIL if toks[2].upper() == "I" else _MM_PER_UM
-                symbols[num] = (toks[1], scale)
-            elif head.startswith(("@", "&")) or "=" in head:
-                continue
-            elif head == "P":
-                _need(toks, 7, "pad", src, ln, stmt)
-                x, y = (_float(t, src, ln, stmt) * coord for t in toks[1:3])
-                i = 3
-                if toks[i] == "-1":
-                    self.note(src, ln, "resized pad (apt_def -1) not supported; skipped")
-                    continue
-                sym = int(_float(toks[i], src, ln, stmt))
-                dark = toks[i + 1].upper() != "N"
-                orient = int(_float(toks[i + 3], src, ln, stmt))
-                if orient in (8, 9):
-                    _need(toks, 8, "pad with orientation 8/9", src, ln, stmt)
-                    cw = _float(toks[i + 4], src, ln, stmt)
-                    mirror = orient == 9
-                elif 0 <= orient <= 7:
-                    cw = 90.0 * (orient % 4)
-                    mirror = orient >= 4
-                else:
-                    raise ParseError(
-                        f"pad orientation must be 0 to 9; got {orient}",
-                        file=src,
-                        line=ln,
-                        statement=stmt,
-                    )
-                ap = aperture(sym, mirror, cw, ln, stmt)
-                if ap is not None:
-                    objs.append(_Obj(FLASH, dark, (x, y), ap))
-            elif head == "L":
-                _need(toks, 7, "line", src, ln, stmt)
-                x0, y0, x1, y1 = (_float(t, src, ln, stmt) * coord for t in toks[1:5])
-                sym = int(_float(toks[5], src, ln, stmt))
-                ap = aperture(sym, False, 0.0, ln, stmt)
-                if ap is not None:
-                    line = np.array([[x0, y0], [x1, y1]], dtype=np.float64)
-                    objs.append(_Obj(TRACK, toks[6].upper() != "N", (x0, y0), ap, [line]))
-            elif head == "A":
-                _need(toks, 11, "arc", src, ln, stmt)
-                x0, y0, x1, y1, xc, yc = (_float(t, src, ln, stmt) * coord for t in toks[1:7])
-                sym = int(_float(toks[7], src, ln, stmt))
-                ccw = toks[10].upper() != "Y"
-                full = math.hypot(x1 - x0, y1 - y0) < 1e-12
-                pts = arc_points(x0, y0, x1, y1, xc, yc, ccw=ccw, full_circle=full)
-                ap = aperture(sym, False, 0.0, ln, stmt)
-                if ap is not None:
-                    line = np.vstack([[[x0, y0]], pts])
-                    objs.append(_Obj(TRACK, toks[8].upper() != "N", (x0, y0), ap, [line]))
-            elif head == "S":
-                _need(toks, 2, "surface", src, ln, stmt)
-                surf = _Obj(REGION, toks[1].upper() != "N", (0.0, 0.0))
-                contours = []
-            elif head in ("T", "B"):
-                what = "text" if head == "T" else "barcode"
-                skipped[f"<{what} record>"] = skipped.get(f"<{what} record>", 0) + 1
-            elif head == "F":
-                continue
-            else:
-                self.note(src, ln, f"unknown record {head!r} skipped")
-        if surf is not None:
-            raise ParseError(
-                "a surface must end with SE; got the end of the file", file=src, line=len(lines)
-            )
-        for name, count in skipped.items():
-            self.note(src, None, f"{count} feature(s) with {name!r} not drawn (not supported)")
-        return apertures, objs, units
-
-
-def _polygons(geom: BaseGeometry) -> list[Polygon]:
-    return [g for g in shapely.get_parts(geom) if isinstance(g, Polygon) and not g.is_empty]
-
-
-def _closed(ring: FloatArray) -> FloatArray:
-    if len(ring) and not np.array_equal(ring[0], ring[-1]):
-        return np.vstack([ring, ring[:1]])
-    return ring
-
-
-def _hole_free_rings(poly: Polygon) -> list[FloatArray]:
-    """Closed rings of hole-free pieces whose union is ``poly`` (mm)."""
-    if not poly.interiors:
-        return [np.asarray(poly.exterior.coords, dtype=np.float64)]
-    ymin, ymax = poly.bounds[1] - 1.0, poly.bounds[3] + 1.0
-    xs = sorted({0.5 * (h.bounds[0] + h.bounds[2]) for h in poly.interiors})
-    cutter = MultiLineString([[(x, ymin), (x, ymax)] for x in xs])
-    out: list[FloatArray] = []
-    for piece in _polygons(split(poly, cutter)):
-        if piece.interiors:  # cannot happen for a valid polygon; triangulate to be safe
-            for tri in _polygons(shapely.constrained_delaunay_triangles(piece)):
-                out.append(np.asarray(tri.exterior.coords, dtype=np.float64))
-        else:
-            out.append(np.asarray(piece.exterior.coords, dtype=np.float64))
-    return out
-
-
-def _surface_rings(contours: list[tuple[bool, list[FloatArray]]]) -> list[FloatArray]:
-    """Contours of one surface record as rings that are filled on their own and united."""
-    rings: list[FloatArray] = []
-    k = 0
-    while k < len(contours):
-        island = _closed(np.vstack(contours[k][1]))
-        k += 1
-        holes: list[FloatArray] = []
-        while k < len(contours) and not contours[k][0]:
-            holes.append(_closed(np.vstack(contours[k][1])))
-            k += 1
-        if len(island) < 4:
-            continue
-        if not holes:
-            rings.append(island)
-            continue
-        poly = shapely.make_valid(Polygon(island, [h for h in holes if len(h) >= 4]))
-        for p in _polygons(poly):
-            rings += _hole_free_rings(p)
-    return rings
+# --------------------------------------------------------------------------- records
 
 
 def _artwork(
+    parsed: ParsedFeatures | None,
     source: str,
-    units: Literal["mm", "inch"],
     negative: bool,
-    apertures: list[ApertureRecord],
-    objs: list[_Obj],
     attributes: dict[str, str],
-    size_bytes: int,
     notices: tuple[Notice, ...],
+    eda: EdaNets | None = None,
+    layer: str = "",
 ) -> ArtworkRecord:
-    n = len(objs)
-    ring_list = [r for o in objs for r in o.rings]
-    counts = np.array([len(o.rings) for o in objs], dtype=np.int64)
-    vcounts = np.array([len(r) for r in ring_list], dtype=np.int64)
+    if parsed is None:
+        parsed = ParsedFeatures(source=source, units="inch", size_bytes=0)
+    n = len(parsed.kind)
+    ring_list = [r for rings in parsed.rings for r in rings]
+    counts = np.fromiter((len(r) for r in parsed.rings), dtype=np.int64, count=n)
+    vcounts = np.fromiter((len(r) for r in ring_list), dtype=np.int64, count=len(ring_list))
     vertices = np.vstack(ring_list) if ring_list else np.zeros((0, 2), dtype=np.float64)
     minus = np.full(n, -1, dtype=np.int64)
+    obj_net = minus.copy()
+    nets: tuple[str, ...] = ()
+    if eda is not None and n:
+        obj_net = eda.feature_nets(layer, np.asarray(parsed.feature, dtype=np.int64))
+        nets = eda.nets
     return ArtworkRecord(
-        source=source,
-        units_in_file=units,
+        source=parsed.source,
+        units_in_file=parsed.units,
         negative_image=negative,
         file_attributes=attributes,
         comments=(),
-        apertures=tuple(apertures),
-        obj_kind=np.array([o.kind for o in objs], dtype=np.int8),
-        obj_dark=np.array([o.dark for o in objs], dtype=np.bool_),
-        obj_aperture=np.array([o.aperture for o in objs], dtype=np.int64),
-        obj_xy=np.array([o.xy for o in objs], dtype=np.float64).reshape(n, 2),
+        apertures=tuple(parsed.apertures),
+        obj_kind=np.array(parsed.kind, dtype=np.int8),
+        obj_dark=np.array(parsed.dark, dtype=np.bool_),
+        obj_aperture=np.array(parsed.aperture, dtype=np.int64),
+        obj_xy=np.array(parsed.xy, dtype=np.float64).reshape(n, 2),
         obj_ring_start=np.concatenate([[0], np.cumsum(counts)]).astype(np.int64),
         ring_vertex_start=np.concatenate([[0], np.cumsum(vcounts)]).astype(np.int64),
-        vertices=vertices.astype(np.float64),
-        obj_net=minus,
+        vertices=vertices.astype(np.float64, copy=False),
+        obj_net=obj_net,
         obj_component=minus.copy(),
         obj_function=minus.copy(),
-        nets=(),
+        nets=nets,
         components=(),
         functions=(),
-        size_bytes=size_bytes,
+        size_bytes=parsed.size_bytes,
         notices=notices,
     )
 
 
 def parse_features(
-    path: str | Path, *, root: str | Path | None = None, negative: bool = False
+    path: str | Path,
+    *,
+    root: str | Path | None = None,
+    negative: bool = False,
+    max_bytes: int = 200_000_000,
+    max_objects: int = 20_000_000,
+    max_vertices: int = 50_000_000,
 ) -> ArtworkRecord:
-    """Read one ODB++ ``features`` file into an :class:`ArtworkRecord` (mm).
+    """Read one ODB++ ``features`` file (or ``features.Z`` / ``.gz``) into an ArtworkRecord.
 
     Parameters
     ----------
     path : str or Path
-        The features file.
+        The features file (its plain name; a compressed variant is found).
     root : str or Path, optional
         Job root holding ``symbols/`` for user symbols; default four folders up from
         ``path`` (``<root>/steps/<step>/layers/<layer>/features``).
     negative : bool
         Layer polarity is NEGATIVE (sets ``negative_image``).
+    max_bytes, max_objects, max_vertices : int
+        As for :func:`read_odb`.
 
     Returns
     -------
     ArtworkRecord
+        Coordinates in mm; no nets (those come from the job's EDA data).
+
+    Raises
+    ------
+    InputError
+        No such file, or a compressed file that does not decode.
+    ParseError, LimitError, ConfigError
     """
     p = Path(path)
     if root is None:
         root = p.parents[4] if len(p.parents) > 4 else p.parent
-    reader = _Reader(Path(root))
-    return _layer_record(reader, p, negative, {})
-
-
-def _layer_record(
-    reader: _Reader, path: Path, negative: bool, attributes: dict[str, str]
-) -> ArtworkRecord:
-    before = len(reader.notices)
-    apertures, objs, units = reader.features(path)
-    own = tuple(reader.notices[before:])
-    return _artwork(
-        str(path), units, negative, apertures, objs, attributes, path.stat().st_size, own
-    )
+    limits = OdbLimits(max_bytes=max_bytes, max_objects=max_objects, max_vertices=max_vertices)
+    notices: list[Notice] = []
+    reader = FeatureReader(Path(root), limits, notices)
+    parsed = reader.features(p)
+    if parsed is None:
+        raise InputError("a features file must exist; got none", file=str(p))
+    return _artwork(parsed, str(p), negative, {}, tuple(notices))
 
 
 # --------------------------------------------------------------------------- job level
 
 
-def _profile_contours(reader: _Reader, step_dir: Path) -> list[FloatArray]:
+def _profile_contours(step_dir: Path, limits: OdbLimits, notices: list[Notice]) -> list[FloatArray]:
     """Profile contours as written (island first, holes after), closed, mm."""
-    path = step_dir / "profile"
-    if not path.is_file() or path.stat().st_size == 0:
+    got = read_lines(step_dir / "profile", limits, notices)
+    if got is None:
         return []
-    lines = _read_lines(path, reader.notices)
-    coord = 1.0 if _units_of(lines) == "mm" else _MM_PER_INCH
+    lines, actual, _size = got
+    src = str(actual)
+    coord = 1.0 if units_of(lines) == "mm" else MM_PER_INCH
     rings: list[FloatArray] = []
     cur: list[FloatArray] = []
-    for raw in lines:
+    for ln, raw in enumerate(lines, start=1):
         toks = raw.split(";", 1)[0].split()
         if not toks:
             continue
@@ -730,12 +296,13 @@ def _profile_contours(reader: _Reader, step_dir: Path) -> list[FloatArray]:
                     arc_points(x0, y0, xe, ye, xc, yc, ccw=toks[5].upper() != "Y", full_circle=full)
                 )
             elif toks[0] == "OE" and cur:
-                rings.append(_closed(np.vstack(cur)))
+                rings.append(closed(np.vstack(cur)))
                 cur = []
         except (ValueError, IndexError) as exc:
             raise ParseError(
                 "a profile contour record must have numeric fields; got a malformed line",
-                file=str(path),
+                file=src,
+                line=ln,
                 statement=raw.strip(),
             ) from exc
     return rings
@@ -748,21 +315,43 @@ def _step_has_features(step_dir: Path) -> bool:
     return any(f.is_file() and f.stat().st_size > 0 for f in layers.glob("*/features*"))
 
 
-def _components(reader: _Reader, path: Path, side: Literal["top", "bottom"]) -> list[PlacementRow]:
-    src = str(path)
-    lines = _read_lines(path, reader.notices)
-    units = _units_of(lines)
+def _components(
+    path: Path,
+    side: Literal["top", "bottom"],
+    limits: OdbLimits,
+    notices: list[Notice],
+    no_units: list[str],
+) -> list[PlacementRow]:
+    try:
+        got = read_lines(path, limits, notices)
+    except CompressedFileError as exc:
+        msg = f"{exc}; components of the {side} side left out"
+        notices.append(Notice(file=str(exc.file or path), line=None, message=msg))
+        return []
+    if got is None:
+        return []
+    lines, actual, _size = got
+    src = str(actual)
+    units = units_of(lines)
     if units is None:
-        reader.no_units.append(src)
-    coord = 1.0 if units == "mm" else _MM_PER_INCH
+        no_units.append(src)
+    coord = 1.0 if units == "mm" else MM_PER_INCH
     rows: list[dict[str, object]] = []
+    short: list[int] = []
+    attr_names: dict[str, str] = {}
     for ln, raw in enumerate(lines, start=1):
         stmt = raw.strip()
-        if stmt.startswith("CMP "):
-            toks = stmt.split(";", 1)[0].split()
-            _need(toks, 7, "CMP", src, ln, stmt)
-            x, y = (_float(t, src, ln, stmt) * coord for t in toks[2:4])
-            rot_cw = _float(toks[4], src, ln, stmt)
+        if stmt.startswith("@"):
+            num, _, attr = stmt[1:].partition(" ")
+            attr_names[num.strip()] = attr.strip().lower()
+        elif stmt.startswith("CMP "):
+            head, _, attrs = stmt.partition(";")
+            toks = head.split()
+            if len(toks) < 7:
+                short.append(ln)
+                continue
+            x, y = (parse_float(t, src, ln, stmt) * coord for t in toks[2:4])
+            rot_cw = parse_float(toks[4], src, ln, stmt)
             rows.append(
                 {
                     "ref": toks[6],
@@ -773,6 +362,7 @@ def _components(reader: _Reader, path: Path, side: Literal["top", "bottom"]) -> 
                     "line": ln,
                     "value": "",
                     "description": "",
+                    "no_pop": _flag_set(attrs, attr_names, ".no_pop"),
                 }
             )
         elif stmt.startswith("PRP ") and rows:
@@ -785,6 +375,12 @@ def _components(reader: _Reader, path: Path, side: Literal["top", "bottom"]) -> 
                 rows[-1]["value"] = val
             elif k == "description" and val:
                 rows[-1]["description"] = val
+    if short:
+        msg = (
+            f"{len(short)} CMP record(s) with fewer than 7 fields skipped "
+            f"(first at line {short[0]})"
+        )
+        notices.append(Notice(file=src, line=short[0], message=msg))
     return [
         PlacementRow(
             ref=str(r["ref"]),
@@ -796,13 +392,110 @@ def _components(reader: _Reader, path: Path, side: Literal["top", "bottom"]) -> 
             side=side,
             source=src,
             line=int(r["line"]),  # type: ignore[call-overload]
-            description=str(r["description"]),
+            description=(
+                f"not populated (ODB++ attribute .no_pop); {r['description']}"
+                if r["no_pop"]
+                else str(r["description"])
+            ),
         )
         for r in rows
     ]
 
 
-def read_odb(root: str | Path) -> OdbPackage:
+def _flag_set(attrs: str, names: dict[str, str], wanted: str) -> bool:
+    """Whether a record's attribute list (``0=1,1``) sets the boolean attribute ``wanted``.
+
+    Attributes are ``<n>`` (a boolean, set) or ``<n>=<value>`` with ``<n>`` the number of
+    an ``@<n> <name>`` line (ODB++ Format Specification, from memory: feature and
+    component attributes). A boolean written with a value counts when the value is not
+    ``0``/``false``/``no``.
+    """
+    for item in attrs.split(";", 1)[0].split(","):
+        num, eq, val = item.strip().partition("=")
+        if names.get(num.strip()) != wanted:
+            continue
+        if not eq or val.strip().lower() not in ("0", "false", "no"):
+            return True
+    return False
+
+
+def _eda_nets(
+    step_dir: Path, limits: OdbLimits, notices: list[Notice]
+) -> tuple[EdaNets | None, str]:
+    path = step_dir / "eda" / "data"
+    try:
+        got = read_lines(path, limits, notices)
+    except CompressedFileError as exc:
+        msg = f"{exc}; nets left out (copper objects carry no net)"
+        notices.append(Notice(file=str(exc.file or path), line=None, message=msg))
+        return None, ""
+    if got is None:
+        return None, ""
+    lines, actual, _size = got
+    return parse_eda_nets(lines), str(actual)
+
+
+def _find_root(base: Path) -> Path:
+    if find_file(base / "matrix" / "matrix") is not None:
+        return base
+    inner = (
+        [d for d in base.iterdir() if find_file(d / "matrix" / "matrix") is not None]
+        if base.is_dir()
+        else []
+    )
+    if len(inner) != 1:
+        raise InputError("an ODB++ folder must contain matrix/matrix; got none", file=str(base))
+    return inner[0]
+
+
+def _matrix(
+    base: Path, limits: OdbLimits, notices: list[Notice]
+) -> tuple[tuple[str, ...], tuple[MatrixRow, ...]]:
+    got = read_lines(base / "matrix" / "matrix", limits, notices)
+    if got is None:  # pragma: no cover - _find_root checked it
+        raise InputError("an ODB++ folder must contain matrix/matrix; got none", file=str(base))
+    blks = blocks(got[0])
+
+    def _int(v: str) -> int:
+        try:
+            return int(v)
+        except ValueError:
+            return 0
+
+    steps = tuple(
+        b.get("NAME", "")
+        for _n, b in sorted(
+            (x for x in blks if x[0] == "STEP"), key=lambda x: _int(x[1].get("COL", "0"))
+        )
+    )
+    matrix = tuple(
+        sorted(
+            (
+                MatrixRow(
+                    name=b.get("NAME", ""),
+                    row=_int(b.get("ROW", "0")),
+                    context=b.get("CONTEXT", "").upper(),
+                    type=b.get("TYPE", "").upper(),
+                    polarity=b.get("POLARITY", "POSITIVE").upper(),
+                    start_name=b.get("START_NAME", ""),
+                    end_name=b.get("END_NAME", ""),
+                )
+                for n, b in blks
+                if n == "LAYER"
+            ),
+            key=lambda r: r.row,
+        )
+    )
+    return steps, matrix
+
+
+def read_odb(
+    root: str | Path,
+    *,
+    max_bytes: int = 200_000_000,
+    max_objects: int = 20_000_000,
+    max_vertices: int = 50_000_000,
+) -> OdbPackage:
     """Read an unpacked ODB++ job folder.
 
     Parameters
@@ -810,6 +503,12 @@ def read_odb(root: str | Path) -> OdbPackage:
     root : str or Path
         The job folder (holding ``matrix/`` and ``steps/``), or a folder with exactly one
         such job folder inside.
+    max_bytes : int
+        Largest file read, after decompression (bytes), per file.
+    max_objects : int
+        Most objects one features file may produce.
+    max_vertices : int
+        Most vertices one features file may produce (arcs linearised).
 
     Returns
     -------
@@ -818,75 +517,50 @@ def read_odb(root: str | Path) -> OdbPackage:
     Raises
     ------
     InputError
-        No ``matrix/matrix`` file, or no step with a non-empty profile and features.
+        No ``matrix/matrix`` file, no step with a non-empty profile and features, or a
+        compressed matrix, profile or copper/drill features file that does not decode.
     ParseError
         A malformed record in a features, profile or components file.
+    LimitError
+        A file, or what it decompresses to, is larger than ``max_bytes``, or a features
+        file makes more than ``max_objects`` objects or ``max_vertices`` vertices; the
+        message names the file and the limit.
+    ConfigError
+        A limit below 1.
     """
-    base = Path(root)
-    if not (base / "matrix" / "matrix").is_file():
-        inner = (
-            [d for d in base.iterdir() if (d / "matrix" / "matrix").is_file()]
-            if base.is_dir()
-            else []
-        )
-        if len(inner) != 1:
-            raise InputError("an ODB++ folder must contain matrix/matrix; got none", file=str(base))
-        base = inner[0]
-    reader = _Reader(base)
-    blocks = _blocks(_read_lines(base / "matrix" / "matrix", reader.notices))
-    steps = tuple(
-        b["NAME"]
-        for _n, b in sorted(
-            (x for x in blocks if x[0] == "STEP"), key=lambda x: int(x[1].get("COL", "0") or 0)
-        )
-    )
-    matrix = tuple(
-        sorted(
-            (
-                MatrixRow(
-                    name=b.get("NAME", ""),
-                    row=int(b.get("ROW", "0") or 0),
-                    context=b.get("CONTEXT", "").upper(),
-                    type=b.get("TYPE", "").upper(),
-                    polarity=b.get("POLARITY", "POSITIVE").upper(),
-                    start_name=b.get("START_NAME", ""),
-                    end_name=b.get("END_NAME", ""),
-                )
-                for n, b in blocks
-                if n == "LAYER"
-            ),
-            key=lambda r: r.row,
-        )
-    )
-    info = base / "misc" / "info"
+    limits = OdbLimits(max_bytes=max_bytes, max_objects=max_objects, max_vertices=max_vertices)
+    base = _find_root(Path(root))
+    notices: list[Notice] = []
+    steps, matrix = _matrix(base, limits, notices)
     units_in_info = ""
-    if info.is_file():
-        u = _units_of(_read_lines(info, reader.notices))
+    info = read_lines(base / "misc" / "info", limits, notices)
+    if info is not None:
+        u = units_of(info[0])
         units_in_info = {"mm": "MM", "inch": "INCH", None: ""}[u]
 
     # Step choice: non-empty profile and at least one non-empty features file; among
     # several, prefer one without STEP-REPEAT (a panel repeats the board step).
     candidates: list[str] = []
+    profiles: dict[str, list[FloatArray]] = {}
     for name in steps:
         sd = base / "steps" / name.lower()
-        if _profile_contours(reader, sd) and _step_has_features(sd):
+        prof = _profile_contours(sd, limits, notices)
+        if prof and _step_has_features(sd):
             candidates.append(name)
+            profiles[name] = prof
     if not candidates:
         raise InputError(
             "an ODB++ job must have a step with a non-empty profile and features; got none "
             f"among {list(steps)}",
             file=str(base),
         )
-    plain = [
-        s
-        for s in candidates
-        if "STEP-REPEAT"
-        not in (
-            (base / "steps" / s.lower() / "stephdr").read_text("utf-8", "replace").upper()
-            if (base / "steps" / s.lower() / "stephdr").is_file()
-            else ""
-        )
-    ]
+
+    def _repeats(step: str) -> bool:
+        hdr = base / "steps" / step.lower() / "stephdr"
+        got = read_lines(hdr, limits, notices)
+        return got is not None and any("STEP-REPEAT" in s.upper() for s in got[0])
+
+    plain = [s for s in candidates if not _repeats(s)]
     if len(candidates) == 1:
         step = candidates[0]
         reason = f"only step with a non-empty profile and features (of {len(steps)})"
@@ -900,45 +574,59 @@ def read_odb(root: str | Path) -> OdbPackage:
         step = candidates[0]
         reason = f"first of {len(candidates)} steps with profile and features (all repeat)"
     if len(candidates) > 1:
-        reader.note(str(base), None, f"step {step!r} chosen: {reason}")
+        notices.append(Notice(file=str(base), line=None, message=f"step {step!r} chosen: {reason}"))
     step_dir = base / "steps" / step.lower()
+    profile = profiles[step]
 
-    profile = _profile_contours(reader, step_dir)
+    eda, nets_from = _eda_nets(step_dir, limits, notices)
+    reader = FeatureReader(base, limits, notices)
     copper_rows = [r for r in matrix if r.context == "BOARD" and r.type in COPPER_TYPES]
     copper: list[ArtworkRecord] = []
     for r in copper_rows:
-        ldir = step_dir / "layers" / r.name.lower()
-        path = ldir / "features"
+        path = step_dir / "layers" / r.name.lower() / "features"
         attrs = {"OdbLayerName": r.name, "OdbLayerType": r.type}
         neg = r.polarity == "NEGATIVE"
-        if path.is_file():
-            copper.append(_layer_record(reader, path, neg, attrs))
+        before = len(notices)
+        parsed = reader.features(path)
+        if parsed is None:
+            notices.append(
+                Notice(file=str(path), line=None, message="no features file; layer empty")
+            )
+        own = tuple(notices[before:])
+        copper.append(_artwork(parsed, str(path), neg, attrs, own, eda, r.name))
+
+    copper_names = tuple(r.name for r in copper_rows)
+    drills: list[DrillRecord] = []
+    drill_names: list[str] = []
+    for r in matrix:
+        if r.context != "BOARD" or r.type not in ("DRILL", "ROUT"):
             continue
-        note: tuple[Notice, ...]
-        if (ldir / "features.Z").is_file():
-            msg = "compressed features file not read (needs an LZW decoder); layer left empty"
-            note = (Notice(file=str(ldir / "features.Z"), line=None, message=msg),)
-        else:
-            note = (Notice(file=str(path), line=None, message="no features file; layer empty"),)
-        reader.notices.extend(note)
-        copper.append(_artwork(str(path), "inch", neg, [], [], attrs, 0, note))
+        path = step_dir / "layers" / r.name.lower() / "features"
+        parsed = reader.features(path, keep_attrs=True)
+        if parsed is None:
+            continue
+        rec = drill_record(
+            parsed,
+            r.name,
+            rout=r.type == "ROUT",
+            span=span_of(r.start_name, r.end_name, copper_names),
+        )
+        notices.extend(rec.notices)
+        drills.append(rec)
+        drill_names.append(r.name)
 
     placements: list[PlacementRow] = []
     for folder, side in (("comp_+_top", "top"), ("comp_+_bot", "bottom")):
-        cdir = step_dir / "layers" / folder
-        if (cdir / "components").is_file():
-            placements += _components(reader, cdir / "components", side)  # type: ignore[arg-type]
-        elif (cdir / "components.Z").is_file():
-            reader.note(str(cdir / "components.Z"), None, "compressed components file not read")
-    for z in sorted(step_dir.glob("layers/*/*.Z")):
-        if z.name not in ("features.Z", "components.Z"):
-            reader.note(str(z), None, "compressed file not read")
+        cpath = step_dir / "layers" / folder / "components"
+        placements += _components(cpath, side, limits, notices, reader.no_units)  # type: ignore[arg-type]
     if reader.no_units:
-        reader.note(
-            str(base),
-            None,
-            f"{len(reader.no_units)} file(s) have no UNITS line; read as inch "
-            f"(first: {reader.no_units[0]})",
+        notices.append(
+            Notice(
+                file=str(base),
+                line=None,
+                message=f"{len(reader.no_units)} file(s) have no UNITS line; read as inch "
+                f"(first: {reader.no_units[0]})",
+            )
         )
     island = profile[0] if profile else np.zeros((0, 2), dtype=np.float64)
     return OdbPackage(
@@ -947,11 +635,15 @@ def read_odb(root: str | Path) -> OdbPackage:
         step=step,
         step_reason=reason,
         matrix=matrix,
-        copper_names=tuple(r.name for r in copper_rows),
+        copper_names=copper_names,
         copper=tuple(copper),
         profile_rings=tuple(profile),
         profile_ring=island,
         placements=tuple(placements),
         units_in_info=units_in_info,
-        notices=tuple(reader.notices),
+        notices=tuple(notices),
+        drills=tuple(drills),
+        drill_names=tuple(drill_names),
+        stack_thickness_mm=None,
+        nets_from=nets_from,
     )

@@ -44,6 +44,7 @@ __all__ = [
     "classify_head",
     "classify_path",
     "decode_head",
+    "find_odb_jobs",
     "open_package",
     "scan_folder",
 ]
@@ -678,3 +679,47 @@ def open_package(
             notices = _extract_tar(p, shown, dest, limits)
         pkg = scan_folder(dest, display_root=shown, limits=limits)
         yield replace(pkg, notices=tuple(notices) + pkg.notices)
+
+
+_ODB_MATRIX = ("matrix", "matrix.Z", "matrix.gz")
+
+
+def find_odb_jobs(root: str | os.PathLike[str], *, max_depth: int = 3) -> tuple[str, ...]:
+    """The ODB++ job folders inside a package: folders holding ``matrix/matrix``.
+
+    A job folder is recognised by its matrix file (plain or compressed, ``.Z``/``.gz``;
+    ODB++ Format Specification, from memory: the chapter on the job tree). The search
+    goes ``max_depth`` folder levels down and does not look inside a job it found.
+
+    Parameters
+    ----------
+    root : path
+        The package folder.
+    max_depth : int
+        How many folder levels below ``root`` are searched (0: ``root`` only).
+
+    Returns
+    -------
+    tuple of str
+        Job folders relative to ``root`` in POSIX form (``"."`` for ``root`` itself),
+        sorted.
+    """
+    base = Path(root)
+    found: list[str] = []
+
+    def visit(folder: Path, depth: int) -> None:
+        if any((folder / "matrix" / name).is_file() for name in _ODB_MATRIX):
+            rel = folder.relative_to(base).as_posix()
+            found.append(rel or ".")
+            return
+        if depth >= max_depth:
+            return
+        try:
+            children = sorted(c for c in folder.iterdir() if c.is_dir() and not c.is_symlink())
+        except OSError:
+            return
+        for child in children:
+            visit(child, depth + 1)
+
+    visit(base, 0)
+    return tuple(sorted(found))

@@ -93,7 +93,12 @@ def stack_text(summary: dict[str, Any], *, width: int = 120) -> str:
         for d in st["dielectrics"]
     )
     board_mm = _fmt(st["board_thickness_mm"])
-    lines = [f"Stack-up from {st['source']}: board {board_mm} mm; {gaps or 'no gaps'}"]
+    route = summary.get("route") or {}
+    lines = []
+    if route:
+        names = {"odb": "ODB++ job", "gerber": "Gerber/Excellon files"}
+        lines.append(f"Input route: {names.get(route['name'], route['name'])} ({route['why']})")
+    lines.append(f"Stack-up from {st['source']}: board {board_mm} mm; {gaps or 'no gaps'}")
     ol = summary.get("outline")
     if ol:
         b = ol["bounds_mm"]
