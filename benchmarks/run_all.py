@@ -10,7 +10,13 @@ HERE = Path(__file__).resolve().parent
 
 
 def main() -> int:
-    for script in ("bench_read.py", "bench_load.py", "bench_compose.py"):
+    for script in (
+        "bench_read.py",
+        "bench_odb.py",
+        "bench_load.py",
+        "bench_compose.py",
+        "bench_sheet.py",
+    ):
         print(f"== {script}", flush=True)
         subprocess.run([sys.executable, str(HERE / script)], check=False, cwd=HERE)
     return 0

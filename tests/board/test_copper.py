@@ -667,3 +667,59 @@ def test_real_plane_under_inductor(realboard: Callable[[str], Path]) -> None:
     assert np.all(shapely.contains(plane, pts))
     # plane | traces is the copper up to dropped slivers (< 1e-6 mm^2 each)
     assert plane.area + traces.area == pytest.approx(copper.area, abs=1e-4)
+
+
+# --------------------------------------------------------------------------- centre lines
+
+
+def test_track_lines_keeps_local_runs() -> None:
+    """A U-shaped polyline that leaves a window and comes back gives two runs with its own
+    vertices; a clear track and a flash give none (hand construction)."""
+    b = Builder()
+    ap = b.circle(0.2)
+    u = [(0.0, 0.0), (0.0, 5.0), (20.0, 5.0), (20.0, 0.0), (20.0, -5.0)]
+    b.track(ap, u, net="A")
+    b.track(ap, [(1.0, 1.0), (2.0, 1.0)], dark=False)
+    b.flash(b.circle(1.0), 1.0, 1.0)
+    layer = LayerArtwork(b.build())
+    # window x -1..1, y -1..1 meets only segment 0; x 19..21, y -1..1 segments 2 and 3
+    lines, objs = layer.track_lines((-1.0, -1.0, 1.0, 1.0))
+    assert objs.tolist() == [0]
+    assert shapely.get_coordinates(lines).tolist() == [[0.0, 0.0], [0.0, 5.0]]
+    lines, objs = layer.track_lines((-1.0, -1.0, 21.0, 1.0))
+    assert objs.tolist() == [0, 0]
+    got = [shapely.get_coordinates(g).tolist() for g in lines]
+    assert got == [[[0.0, 0.0], [0.0, 5.0]], [[20.0, 5.0], [20.0, 0.0], [20.0, -5.0]]]
+    empty, none = layer.track_lines((50.0, 50.0, 60.0, 60.0))
+    assert empty.size == 0
+    assert none.size == 0
+
+
+@settings(max_examples=40, deadline=None)
+@given(
+    st.lists(
+        st.tuples(st.booleans(), st.lists(st.tuples(coord, coord), min_size=2, max_size=8)),
+        min_size=1,
+        max_size=5,
+    ),
+    window_st,
+)
+def test_track_lines_equal_whole_tracks_in_window(
+    tracks: list[tuple[bool, list[tuple[float, float]]]],
+    window: tuple[float, float, float, float],
+) -> None:
+    """Inside the window the local runs are exactly the whole dark polylines."""
+    b = Builder()
+    ap = b.circle(0.1)
+    for dark, pts in tracks:
+        b.track(ap, pts, dark=dark)
+    layer = LayerArtwork(b.build())
+    lines, objs = layer.track_lines(window)
+    box = shapely.box(*window)
+    whole = [shapely.LineString(p) for d, p in tracks if d]
+    expect = shapely.intersection(shapely.union_all(whole), box) if whole else shapely.Point()
+    local = shapely.intersection(shapely.union_all(lines), box) if lines.size else shapely.Point()
+    assert abs(local.length - expect.length) < 1e-9
+    if expect.length > 0:  # same place, not only the same length
+        assert shapely.hausdorff_distance(local, expect) < 1e-9
+    assert all(tracks[i][0] for i in objs.tolist())

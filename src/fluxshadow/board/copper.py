@@ -490,6 +490,41 @@ class LayerArtwork:
         hits = self._tree.query(shapely.box(*w))
         return np.sort(np.asarray(hits, dtype=np.int64))
 
+    def track_lines(self, window: Sequence[float]) -> tuple[ObjArray, IntArray]:
+        """Centre lines of the dark tracks near a window, cut to their local runs (mm).
+
+        Each track's polyline is cut into its runs of consecutive segments whose bounding
+        boxes meet the window: every point of the polyline inside the window (or within
+        any distance ``d`` of a point inside it, when the window is grown by ``d``) lies
+        on a kept run, and a kept run keeps the polyline's own vertices. A long polyline
+        that crosses the whole layer costs only its local part.
+
+        Parameters
+        ----------
+        window : sequence of 4 float
+            ``(xmin, ymin, xmax, ymax)`` in mm.
+
+        Returns
+        -------
+        lines : ndarray of shapely.LineString, shape (k,)
+            The runs, in file order of their tracks (mm).
+        objects : ndarray of int64, shape (k,)
+            Index of the track object each run was cut from.
+        """
+        w = _check_window(window)
+        idx = self.query(w)
+        idx = idx[(self._kind[idx] == TRACK) & self._dark[idx]]
+        if idx.size == 0:
+            return np.empty(0, dtype=object), np.empty(0, dtype=np.int64)
+        vs, ve = self._v_start[idx], self._v_end[idx]
+        vidx = _ranges(vs, ve - vs)
+        owner = np.repeat(np.arange(idx.size, dtype=np.int64), ve - vs)
+        vidx, piece, piece_obj = _runs_meeting(self._record.vertices[vidx], vidx, owner, w)
+        if vidx.size == 0:
+            return np.empty(0, dtype=object), np.empty(0, dtype=np.int64)
+        lines = shapely.linestrings(self._record.vertices[vidx], indices=piece)
+        return np.asarray(lines, dtype=object), idx[piece_obj]
+
     # ----------------------------------------------------------------- composition
 
     def _shape(self, aperture: int) -> BaseGeometry:
@@ -1067,11 +1102,18 @@ def split_plane_traces(
     area = shapely.area(parts)
     b = shapely.bounds(parts)
     small = np.maximum(b[:, 2] - b[:, 0], b[:, 3] - b[:, 1]) < fringe_max
-    touching = (
-        shapely.dwithin(parts, plane, 1e-6) if not plane.is_empty else np.zeros(len(parts), bool)
-    )
     real = area >= _SLIVER_AREA_MM2
-    fringe = small & touching & real
+    fringe = small & real
+    if plane.is_empty:
+        fringe[:] = False
+    elif np.any(fringe):
+        # Only the candidates need the test, against the prepared plane; most fringes
+        # share an edge with it, which the cheaper intersects test finds first.
+        shapely.prepare(plane)
+        cand = np.flatnonzero(fringe)
+        touch = shapely.intersects(plane, parts[cand])
+        rest = cand[~touch]
+        fringe[rest] = shapely.dwithin(parts[rest], plane, 1e-6)
     trace = ~fringe & real
     if np.any(fringe):
         plane = shapely.union_all(np.concatenate([[plane], parts[fringe]]))

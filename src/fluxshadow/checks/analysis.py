@@ -19,7 +19,6 @@ from fluxshadow.board.magnetics import Magnetic
 from fluxshadow.board.model import Board, Layer
 from fluxshadow.checks.model import RingInfo
 from fluxshadow.checks.settings import Settings
-from fluxshadow.io.records import TRACK
 
 __all__ = [
     "ExposedTrace",
@@ -269,21 +268,21 @@ def trace_void(
 def _track_lines(
     board: Board, layer: Layer, window: Sequence[float]
 ) -> dict[str, list[BaseGeometry]]:
-    """Centre lines of the dark tracks in a window, grouped by net name ("" if none)."""
+    """Centre lines of the dark tracks in a window, grouped by net name ("" if none).
+
+    Each track keeps only its runs of segments whose boxes meet the window (see
+    :meth:`~fluxshadow.board.copper.LayerArtwork.track_lines`): the part of the centre
+    lines within the window, and within any distance ``d`` of it when the window is grown
+    by ``d``, is the same as the whole tracks', at the cost of the local part only.
+    """
     art = board.artwork(layer)
     rec = art.record
-    idx = art.query(window)
-    idx = idx[(rec.obj_kind[idx] == TRACK) & rec.obj_dark[idx]]
+    lines, objs = art.track_lines(window)
     out: dict[str, list[BaseGeometry]] = {}
-    rvs, ors = rec.ring_vertex_start, rec.obj_ring_start
-    for i in idx:
-        r = int(ors[i])
-        pts = rec.vertices[int(rvs[r]) : int(rvs[r + 1])]
-        if len(pts) < 2:
-            continue
+    for line, i in zip(lines, objs, strict=True):
         net_i = int(rec.obj_net[i])
         net = rec.nets[net_i] if net_i >= 0 else ""
-        out.setdefault(net, []).append(shapely.linestrings(pts))
+        out.setdefault(net, []).append(line)
     return out
 
 
@@ -351,9 +350,15 @@ def _exposed_traces(
     if exposed_copper.is_empty:
         return []
     # Only drawn tracks count as traces: pads and regions narrower than the opening are
-    # copper too, but not conductors running under the part.
-    lines = _track_lines(board, lg.layer, geo.window)
+    # copper too, but not conductors running under the part. The zone lies inside the
+    # window and the landing holes stand in it, so the centre lines near the window (out
+    # to the largest landing radius) are all that the lengths and landings below see.
     landings = _via_landings(board, geo, shadow, settings)
+    reach = 2.0 * _EPS_MM
+    if landings is not None and len(landings.radius_mm):
+        reach += float(landings.radius_mm.max())
+    x0, y0, x1, y1 = geo.window
+    lines = _track_lines(board, lg.layer, (x0 - reach, y0 - reach, x1 + reach, y1 + reach))
     out: list[ExposedTrace] = []
     for net, segs in sorted(lines.items()):
         centre = shapely.union_all(segs)
