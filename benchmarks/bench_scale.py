@@ -83,6 +83,10 @@ def _layer_text(index: int, per_layer: int, rng: random.Random) -> str:
     out.append("D10*" if side == "Inr" else "D12*")
     for _ in range(n_flash):
         x, y = rng.uniform(1, BOARD_W_MM - 1), rng.uniform(1, BOARD_H_MM - 1)
+        if index == 1 and any(abs(x - px) < 5.0 and abs(y - py) < 5.0 for *_, px, py in PARTS):
+            # the magnetics' own pads stand alone, as on a real board (a random pad on
+            # top of them would move the pad centres the placement frame is fitted to)
+            x = x + 10.0 if x < BOARD_W_MM / 2 else x - 10.0
         out.append(f"X{_coord(x)}Y{_coord(y)}D03*")
     n += n_flash
     out.append("D11*")
