@@ -24,6 +24,7 @@ from collections.abc import Callable
 from functools import cache
 from pathlib import Path
 
+import jsonschema
 import numpy as np
 import pytest
 from typer.testing import CliRunner
@@ -34,6 +35,7 @@ from fluxshadow.checks.run import run_checks
 from fluxshadow.cli.app import app
 from fluxshadow.errors import InputError
 from fluxshadow.io.config import load_config
+from fluxshadow.report.json_report import report_to_dict
 
 pytestmark = pytest.mark.realboards
 
@@ -174,6 +176,12 @@ def test_thunderscope_same_findings(
 
     assert keys(o) == keys(g)
     assert len(keys(g)) > 10
+    # The reports say which route they came from and keep to the published schema.
+    schema = json.loads((Path(__file__).parents[2] / "docs" / "report.schema.json").read_text())
+    for report, route in ((g, "gerber"), (o, "odb")):
+        data = report_to_dict(report)
+        jsonschema.validate(data, schema)
+        assert data["route"] == route
     # The figures agree too: every numeric metric within 1 % (measured: at most 0.55 %,
     # a void ring's inner perimeter; arcs are linearised differently by the two writers).
     fo = {(f.rule, f.ref, f.layer): f.metrics for f in o.findings}

@@ -139,8 +139,9 @@ class InputFile:
 class Report:
     """The result of ``fluxshadow check``: findings, per-magnetic results, provenance.
 
-    ``layer_files`` maps each copper layer name (``"L2"``) to its Gerber file, a path
-    relative to the package as in ``inputs`` (empty when unknown).
+    ``layer_files`` maps each copper layer name (``"L2"``) to its Gerber file (or ODB++
+    features file), a path relative to the package as in ``inputs`` (empty when unknown).
+    ``route`` is the input route the board was read by (``"gerber"`` or ``"odb"``).
     """
 
     package: str
@@ -154,6 +155,7 @@ class Report:
     rules: Mapping[str, str]
     config: str = ""
     layer_files: Mapping[str, str] = field(default_factory=dict)
+    route: str = "gerber"
 
     def worst(self, *, include_waived: bool = False) -> str | None:
         """The worst severity among findings (waived ones skipped unless asked)."""

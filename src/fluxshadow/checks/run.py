@@ -271,4 +271,5 @@ def run_checks(
         rules=rules,
         config=cfg.source,
         layer_files={lay.name: lay.source for lay in board.layers},
+        route=board.route,
     )

@@ -98,6 +98,9 @@ _LEGEND = (
 _PNG_MAGIC = b"\x89PNG\r\n\x1a\n"
 
 
+_ROUTE_NAMES = {"gerber": "Gerber/Excellon", "odb": "ODB++"}
+
+
 def _e(value: object) -> str:
     return html.escape(str(value), quote=True)
 
@@ -443,6 +446,7 @@ def report_to_html(report: Report, *, pictures: Mapping[str, bytes] | None = Non
         "</section>",
         '<section id="inputs">',
         "<h2>Inputs</h2>",
+        f"<p>Read by the {_e(_ROUTE_NAMES.get(report.route, report.route))} route.</p>",
         "<table><thead><tr><th>file</th><th>kind</th><th>use</th><th>SHA-256</th></tr>"
         "</thead><tbody>"
         + "".join(

@@ -50,6 +50,7 @@ def report_to_dict(report: Report) -> dict[str, Any]:
         "schema_version": SCHEMA_VERSION,
         "tool": {"name": "fluxshadow", "version": report.tool_version},
         "package": report.package,
+        "route": report.route,
         "config": report.config or None,
         "summary": {
             "magnetics": len(report.magnetics),
