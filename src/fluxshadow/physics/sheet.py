@@ -49,6 +49,16 @@ The field of the sheet currents is exact for piecewise-constant currents:
 B = μ0/(4π) Σ_T ∇V_T × J_T with V_T(r) = ∫_T dA'/|r − r'| (closed-form gradient: edge
 logarithms in the plane, the signed solid angle along z).
 
+Assembly
+--------
+M is never built from the whole triangle-pair matrix: the triangles are put in Z-order and
+cut into compact blocks, and for each block only the lower half of its columns of the
+pair matrix is made (centroid rule from a distance block, the near pairs found in that
+block and integrated there, each pair once), multiplied into the gradient maps with one
+sparse product, and added into the rows of the few nodes the block touches with one small
+dense product. The values are those of :func:`triangle_pair_integrals` (the tests check
+M against the plain product to rounding); memory is the (n, n) result plus one block.
+
 Frequency sweeps
 ----------------
 R and M are symmetric positive definite. With the Cholesky factor R = LLᵀ, one reduction
@@ -86,6 +96,7 @@ from __future__ import annotations
 
 from collections.abc import Sequence
 from dataclasses import dataclass, replace
+from itertools import chain
 from math import ceil, pi
 from typing import Literal
 
@@ -139,6 +150,10 @@ surface-impedance sheet for thick copper (d/δ above about 0.7), see the module 
 _C = MU0 / (4.0 * pi)
 _BLOCK = 400_000
 """Point-triangle pairs evaluated at once by the closed-form kernels."""
+_PAIR_BLOCK = 8_192
+"""Triangle pairs of the point rule evaluated at once (arrays of 64 kB stay in cache)."""
+_KERNEL_BLOCK = 400_000
+"""Entries of the triangle-pair kernel made at once when M is assembled (3.2 MB)."""
 
 _D7_A1, _D7_B1, _D7_W1 = 0.059715871789770, 0.470142064105115, 0.132394152788506
 _D7_A2, _D7_B2, _D7_W2 = 0.797426985353087, 0.101286507323456, 0.125939180544827
@@ -225,6 +240,8 @@ _FIELD_EXACT = 4.0
 
 
 _Frames = tuple[FloatArray, FloatArray, FloatArray, FloatArray]
+_RuleCache = dict[tuple[str, int], tuple[FloatArray, FloatArray]]
+"""Per-triangle arrays of the pair rules, kept between calls on the same triangles."""
 
 
 def _edge_frames(vertices: FloatArray) -> _Frames:
@@ -402,6 +419,22 @@ def triangle_self_integral(vertices_m: ArrayLike) -> FloatArray:
     return np.asarray(4.0 * area * area / 3.0 * terms.sum(axis=1), dtype=np.float64)
 
 
+def _pair_distances(points: FloatArray, a: IntArray, b: IntArray) -> FloatArray:
+    """|points[a] − points[b]| pair by pair; points (t, k), a and b (m,)."""
+    acc = np.zeros(len(a))
+    for c in range(points.shape[1]):
+        col = np.ascontiguousarray(points[:, c])
+        diff = col[a] - col[b]
+        diff *= diff
+        acc += diff
+    return np.asarray(np.sqrt(acc), dtype=np.float64)
+
+
+def _rule_points(vertices: FloatArray, bary: FloatArray) -> FloatArray:
+    """Points of a barycentric rule on every triangle, shape (t, q, 2) (m)."""
+    return np.asarray(np.einsum("qk,tkc->tqc", bary, vertices), dtype=np.float64)
+
+
 def _potential_rule(
     vertices: FloatArray,
     plane_z: FloatArray,
@@ -411,25 +444,83 @@ def _potential_rule(
     rule: tuple[FloatArray, FloatArray],
     frames: _Frames,
     perm: IntArray | None = None,
+    cache: _RuleCache | None = None,
 ) -> FloatArray:
     """∫_{T_i} V_{T_j} dA with a rule on T_i and the closed-form V, pair by pair.
 
     ``perm`` (pairs, 3) reorders the vertices of T_i for the rule (which vertex the
-    collapsed rules gather at).
+    collapsed rules gather at). V as :func:`triangle_potential`, with the edge logarithm
+    in the form ln((R+ + l+)/(R- + l-)) = asinh(l+/R0) − asinh(l-/R0) (the same
+    function; no cancellation for either sign of l±, and cheaper). ``cache`` keeps the
+    per-triangle arrays between calls on the same triangles.
     """
     bary, w = rule
     q = len(w)
     out = np.empty(len(i))
-    step = max(1, _BLOCK // q)
+    if len(i) == 0:
+        return out
+    step = max(1, _BLOCK // (3 * q))
+    cache = {} if cache is None else cache
+    # edge data one contiguous (t, 3) array per component
+    start, tan, _normal, length = frames
+    if ("edges", 0) not in cache:
+        cache["edges", 0] = (
+            np.stack([start[..., 0], start[..., 1]]),
+            np.stack([tan[..., 0], tan[..., 1]]),
+        )
+    (sx, sy), (tx, ty) = cache["edges", 0]
+    # the rule's points on every triangle, for each cyclic reordering of its vertices
+    # (the reorderings of the callers are cyclic: perm = (r + 2, r, r + 1) mod 3)
+    rot = np.ones(len(i), dtype=np.int64) if perm is None else perm[:, 1]
+    cyclic = perm is None or bool(np.all(perm == (rot[:, None] + np.array([2, 0, 1])) % 3))
+    qx_rot = qy_rot = None
+    if cyclic:
+        key = ("rotated", id(bary))
+        if key not in cache:
+            qall = np.stack(
+                [_rule_points(vertices[:, [(r + 2) % 3, r, (r + 1) % 3]], bary) for r in range(3)]
+            )  # (3, t, q, 2)
+            cache[key] = (np.ascontiguousarray(qall[..., 0]), np.ascontiguousarray(qall[..., 1]))
+        qx_rot, qy_rot = cache[key]
+    planar = bool(np.all(plane_z == plane_z[0]))
     for s in range(0, len(i), step):
         ii, jj = i[s : s + step], j[s : s + step]
-        vi = vertices[ii]
-        if perm is not None:
-            vi = np.take_along_axis(vi, perm[s : s + step, :, None], axis=1)
-        pts = np.matmul(bary, vi)  # (p, q, 2)
-        start, tan, normal, length = (x[jj][:, None] for x in frames)  # (p, 1, 3, ...)
-        d = np.broadcast_to((plane_z[ii] - plane_z[jj])[:, None], (len(ii), q))
-        pot = _potential(pts, d, (start, tan, normal, length))
+        if qx_rot is not None and qy_rot is not None:
+            rr = rot[s : s + step]
+            px, py = qx_rot[rr, ii], qy_rot[rr, ii]  # (p, q)
+        else:  # a reordering that is not cyclic (only a caller's perm gets here)
+            order = np.tile(np.arange(3), (len(i), 1)) if perm is None else perm
+            vi = np.take_along_axis(vertices[ii], order[s : s + step, :, None], axis=1)
+            pts = np.einsum("qk,pkc->pqc", bary, vi)  # (p, q, 2)
+            px, py = pts[..., 0], pts[..., 1]
+        # (p, q, 3): rule point of T_i against each edge of T_j
+        ax = sx[jj][:, None, :] - px[:, :, None]
+        ay = sy[jj][:, None, :] - py[:, :, None]
+        txj, tyj = tx[jj][:, None, :], ty[jj][:, None, :]
+        lm = ax * txj
+        lm += ay * tyj
+        p0 = ax * tyj
+        p0 -= ay * txj
+        r02 = p0 * p0
+        d = None
+        if not planar:
+            d = (plane_z[ii] - plane_z[jj])[:, None, None]
+            r02 += d * d
+        lp = lm + length[jj][:, None, :]
+        r0 = np.sqrt(r02)
+        # R0 = 0 only on an edge line in the plane, where P0 = 0 and the term is 0
+        r0[r0 == 0.0] = 1.0
+        f = np.arcsinh(lp / r0)
+        f -= np.arcsinh(lm / r0)
+        f *= p0
+        pot = f.sum(axis=-1)
+        if d is not None and np.any(d != 0.0):
+            ad = np.abs(d)
+            rp = np.sqrt(lp * lp + r02)
+            rm = np.sqrt(lm * lm + r02)
+            with np.errstate(invalid="ignore"):  # R0 = d = 0 gives 0/0, times d = 0
+                ang = np.arctan2(p0 * lp, r02 + ad * rp) - np.arctan2(p0 * lm, r02 + ad * rm)
+            pot -= ad[..., 0] * np.sum(np.where(ad > 0.0, ang, 0.0), axis=-1)
         out[s : s + step] = area[ii] * (pot @ w)
     return out
 
@@ -441,22 +532,45 @@ def _point_rule(
     i: IntArray,
     j: IntArray,
     rule: tuple[FloatArray, FloatArray],
+    cache: _RuleCache | None = None,
 ) -> FloatArray:
-    """∬ 1/|r − r'| with the same point rule on both triangles, pair by pair."""
+    """∬ 1/|r − r'| with the same point rule on both triangles, pair by pair.
+
+    The pairs must be apart (no point of one on a point of the other). ``cache`` keeps
+    the rule's points between calls on the same triangles.
+    """
     bary, w = rule
     q = len(w)
-    ww = np.outer(w, w)
     out = np.empty(len(i))
-    step = max(1, _BLOCK // (q * q))
-    for s in range(0, len(i), step):
-        ii, jj = i[s : s + step], j[s : s + step]
-        pi_ = np.matmul(bary, vertices[ii])
-        pj = np.matmul(bary, vertices[jj])
-        dx = pi_[:, :, None, 0] - pj[:, None, :, 0]
-        dy = pi_[:, :, None, 1] - pj[:, None, :, 1]
-        dz = (plane_z[ii] - plane_z[jj])[:, None, None]
-        inv = 1.0 / np.sqrt(dx * dx + dy * dy + dz * dz)
-        out[s : s + step] = area[ii] * area[jj] * (inv.reshape(len(ii), -1) @ ww.ravel())
+    if len(i) == 0:
+        return out
+    cache = {} if cache is None else cache
+    key = ("points", id(bary))
+    if key not in cache:
+        qall = _rule_points(vertices, bary)
+        # point-major layout: one contiguous row per rule point, gathered per block
+        cache[key] = (np.ascontiguousarray(qall[..., 0].T), np.ascontiguousarray(qall[..., 1].T))
+    qx, qy = cache[key]  # (q, t)
+    planar = bool(np.all(plane_z == plane_z[0]))
+    for s in range(0, len(i), _PAIR_BLOCK):
+        ii, jj = i[s : s + _PAIR_BLOCK], j[s : s + _PAIR_BLOCK]
+        xi, yi, xj, yj = qx[:, ii], qy[:, ii], qx[:, jj], qy[:, jj]
+        dz = plane_z[ii] - plane_z[jj]
+        dz2 = None if planar else dz * dz
+        acc = np.zeros(len(ii))
+        for a in range(q):
+            for b in range(q):
+                r2 = xi[a] - xj[b]
+                r2 *= r2
+                dy = yi[a] - yj[b]
+                dy *= dy
+                r2 += dy
+                if dz2 is not None:
+                    r2 += dz2
+                np.sqrt(r2, out=r2)
+                np.divide(w[a] * w[b], r2, out=r2)
+                acc += r2
+        out[s : s + _PAIR_BLOCK] = area[ii] * area[jj] * acc
     return out
 
 
@@ -499,34 +613,73 @@ def triangle_pair_integrals(
     """
     v = np.asarray(vertices_m, dtype=np.float64).reshape(-1, 3, 2)
     z = np.asarray(plane_z_m, dtype=np.float64).reshape(-1)
-    n = len(v)
-    area = np.abs(triangle_areas(v.reshape(-1, 2), np.arange(3 * n).reshape(-1, 3)))
-    cent = np.column_stack([v.mean(axis=1), z])
-    diam = np.linalg.norm(np.roll(v, -1, axis=1) - v, axis=2).max(axis=1)
-    idx = np.arange(n)
-    # centroid rule everywhere first (the pairs found below are replaced)
-    k = cdist(cent, cent)
+    pairs = _near_pairs(v, z, node_ids, near_diameters, far_diameters)
+    idx = np.arange(len(v))
+    # centroid rule everywhere first (the near pairs and the diagonal are replaced)
+    k = cdist(pairs.centroid_m, pairs.centroid_m)
     k[idx, idx] = 1.0
     np.divide(1.0, k, out=k)
-    # pairs (a < b) closer than far_diameters x the larger diameter
-    lists = cKDTree(cent).query_ball_point(cent, far_diameters * diam, return_sorted=False)
-    counts = np.fromiter(map(len, lists), dtype=np.int64, count=n)
-    other = np.concatenate([np.asarray(row, dtype=np.int64) for row in lists])
-    own = np.repeat(idx, counts)
-    # (own, other) with own < other, plus the pairs only the larger index's ball found
-    up = own < other
-    down = own > other
-    back = np.linalg.norm(cent[own[down]] - cent[other[down]], axis=1)
-    only = back >= far_diameters * diam[other[down]]
-    a = np.concatenate([own[up], other[down][only]])
-    b = np.concatenate([other[up], own[down][only]])
+    k[pairs.a, pairs.b] = pairs.value_per_m
+    k[pairs.b, pairs.a] = pairs.value_per_m
+    k[idx, idx] = pairs.self_per_m
+    if not per_unit_area:
+        k *= np.outer(pairs.area_m2, pairs.area_m2)  # A_a A_b = A_b A_a: G stays symmetric
+    return np.asarray(k, dtype=np.float64)
+
+
+@dataclass(frozen=True, kw_only=True, eq=False)
+class _NearPairs:
+    """Triangle pairs that need more than the centroid rule (see _near_pairs)."""
+
+    a: IntArray
+    b: IntArray
+    value_per_m: FloatArray
+    self_per_m: FloatArray
+    centroid_m: FloatArray
+    area_m2: FloatArray
+
+
+@dataclass(frozen=True, kw_only=True, eq=False)
+class _Triangles:
+    """Per-triangle data of the pair integrals (see :func:`_triangles`)."""
+
+    vertices_m: FloatArray
+    z_m: FloatArray
+    node_ids: IntArray | None
+    area_m2: FloatArray
+    centroid_m: FloatArray
+    diameter_m: FloatArray
+    frames: _Frames
+    cache: _RuleCache
+
+
+def _triangles(v: FloatArray, z: FloatArray, node_ids: ArrayLike | None) -> _Triangles:
+    """Areas, centroids (t, 3), diameters (longest sides) and edge frames of triangles."""
+    n = len(v)
+    return _Triangles(
+        vertices_m=v,
+        z_m=z,
+        node_ids=None if node_ids is None else np.asarray(node_ids, dtype=np.int64).reshape(-1, 3),
+        area_m2=np.abs(triangle_areas(v.reshape(-1, 2), np.arange(3 * n).reshape(-1, 3))),
+        centroid_m=np.column_stack([v.mean(axis=1), z]),
+        diameter_m=np.linalg.norm(np.roll(v, -1, axis=1) - v, axis=2).max(axis=1),
+        frames=_edge_frames(v),
+        cache={},
+    )
+
+
+def _pair_values(
+    tri: _Triangles, a: IntArray, b: IntArray, dist: FloatArray, near_diameters: float
+) -> FloatArray:
+    """Mean of 1/|r − r'| (1/m) over pairs (a, b) of distinct triangles closer than the
+    far threshold, with the rule their distance ``dist`` (centroids, m) calls for."""
+    v, z, area, diam = tri.vertices_m, tri.z_m, tri.area_m2, tri.diameter_m
     dmax = np.maximum(diam[a], diam[b])
-    dist = np.linalg.norm(cent[a] - cent[b], axis=1)
     fine = dist < 1.0 * dmax
     n_shared = np.zeros(len(a), dtype=np.int64)
     perm = np.tile(np.arange(3, dtype=np.int64), (len(a), 1))
-    if node_ids is not None:
-        ids = np.asarray(node_ids, dtype=np.int64).reshape(-1, 3)
+    if tri.node_ids is not None:
+        ids = tri.node_ids
         # triangles sharing a node have centroids closer than 4/3 of the larger diameter
         cand = np.flatnonzero(dist < 1.4 * dmax)
         shared = np.any(ids[a[cand]][:, :, None] == ids[b[cand]][:, None, :], axis=2)  # (k, 3)
@@ -541,21 +694,156 @@ def triangle_pair_integrals(
     near = ~fine & (dist < near_diameters * dmax)
     mid = ~fine & ~near
     vals = np.empty(len(a))
-    frames = _edge_frames(v)
+    frames, cache = tri.frames, tri.cache
     edge = fine & (n_shared == 2)
     other = fine & ~edge
-    vals[edge] = _potential_rule(v, z, area, a[edge], b[edge], _EDGE_RULE, frames, perm[edge])
-    vals[other] = _potential_rule(v, z, area, a[other], b[other], _FINE_RULE, frames, perm[other])
-    vals[near] = _potential_rule(v, z, area, a[near], b[near], _D7, frames)
-    vals[mid] = _point_rule(v, z, area, a[mid], b[mid], _D3)
+    vals[edge] = _potential_rule(
+        v, z, area, a[edge], b[edge], _EDGE_RULE, frames, perm[edge], cache
+    )
+    vals[other] = _potential_rule(
+        v, z, area, a[other], b[other], _FINE_RULE, frames, perm[other], cache
+    )
+    vals[near] = _potential_rule(v, z, area, a[near], b[near], _D7, frames, None, cache)
+    vals[mid] = _point_rule(v, z, area, a[mid], b[mid], _D3, cache)
     vals /= area[a] * area[b]
-    k[a, b] = vals
-    k[b, a] = vals
-    # self pairs in closed form
-    k[idx, idx] = triangle_self_integral(v) / (area * area)
-    if not per_unit_area:
-        k *= np.outer(area, area)  # A_a A_b = A_b A_a exactly: G stays symmetric
-    return np.asarray(k, dtype=np.float64)
+    return vals
+
+
+def _near_pairs(
+    v: FloatArray,
+    z: FloatArray,
+    node_ids: ArrayLike | None,
+    near_diameters: float,
+    far_diameters: float,
+) -> _NearPairs:
+    """Pairs (a < b) closer than ``far_diameters`` and their mean of 1/|r − r'| (1/m).
+
+    Also the self values (closed form), the centroids (t, 3) and the areas (t,), so that
+    every other pair is the centroid rule 1/|c_a − c_b|.
+    """
+    tri = _triangles(v, z, node_ids)
+    n = len(v)
+    cent, diam, area = tri.centroid_m, tri.diameter_m, tri.area_m2
+    idx = np.arange(n)
+    # pairs (a < b) closer than far_diameters x the larger diameter
+    lists = cKDTree(cent).query_ball_point(cent, far_diameters * diam, return_sorted=False)
+    counts = np.fromiter(map(len, lists), dtype=np.int64, count=n)
+    other = np.fromiter(chain.from_iterable(lists), dtype=np.int64, count=int(counts.sum()))
+    own = np.repeat(idx, counts)
+    found = _pair_distances(cent, own, other)
+    # (own, other) with own < other, plus the pairs only the larger index's ball found
+    up = own < other
+    down = np.flatnonzero(own > other)
+    down = down[found[down] >= far_diameters * diam[other[down]]]
+    a = np.concatenate([own[up], other[down]])
+    b = np.concatenate([other[up], own[down]])
+    dist = np.concatenate([found[up], found[down]])
+    return _NearPairs(
+        a=a,
+        b=b,
+        value_per_m=_pair_values(tri, a, b, dist, near_diameters),
+        self_per_m=triangle_self_integral(v) / (area * area),
+        centroid_m=cent,
+        area_m2=area,
+    )
+
+
+def _spatial_order(cent: FloatArray) -> IntArray:
+    """Order of points along a Z-order (Morton) curve, by plane height first.
+
+    Consecutive points in this order are close together, so a run of them touches few
+    mesh nodes. ``cent`` is (t, 3) (m).
+    """
+    lo = cent[:, :2].min(axis=0)
+    span = float(np.ptp(cent[:, :2], axis=0).max()) or 1.0
+    q = np.minimum(((cent[:, :2] - lo) / span * 1024.0).astype(np.int64), 1023)
+
+    def spread(v: IntArray) -> IntArray:
+        # 10 bits to every other bit of 20 (textbook bit interleaving)
+        v = (v | (v << 8)) & 0x00FF00FF
+        v = (v | (v << 4)) & 0x0F0F0F0F
+        v = (v | (v << 2)) & 0x33333333
+        return (v | (v << 1)) & 0x55555555
+
+    code = spread(q[:, 0]) | (spread(q[:, 1]) << 1)
+    return np.asarray(np.lexsort((code, cent[:, 2])), dtype=np.int64)
+
+
+def _inductance_matrix(
+    vertices: FloatArray,
+    plane_z: FloatArray,
+    node_ids: IntArray,
+    maps: Sequence[sp.csr_matrix],
+    near_diameters: float,
+    far_diameters: float,
+) -> FloatArray:
+    """Σ_m Pₘᵀ K Pₘ for sparse maps Pₘ (t, n), K the pair integrals per unit area.
+
+    The same K as :func:`triangle_pair_integrals` (``per_unit_area=True``), but never
+    stored whole, and only its lower half made. Triangles are put in Z-order and cut into
+    blocks S (compact patches). For each block the columns K[s:, S] (centroid rule, then
+    the near pairs and the diagonal written over it) give Y = K[S, S] P[S] + 2 K[S, R] P[R]
+    (R the later triangles) in one sparse-dense product, and P[S]ᵀ Y is a small dense
+    product over the few nodes S touches. Summed over the blocks this is X with
+    (X + Xᵀ)/2 = Pᵀ K P (K symmetric).
+
+    Returns
+    -------
+    ndarray, shape (n, n)
+        X (units of K times those of P squared): symmetrise it, (X + Xᵀ)/2.
+    """
+    tri = _triangles(vertices, plane_z, node_ids)
+    t = len(vertices)
+    n = maps[0].shape[1]
+    order = _spatial_order(tri.centroid_m)
+    cent = tri.centroid_m[order]
+    reach = far_diameters * tri.diameter_m[order]
+    area = tri.area_m2[order]
+    self_per_m = triangle_self_integral(vertices[order]) / (area * area)
+    p_maps = [mp[order].tocsr() for mp in maps]
+    for mp in p_maps:
+        mp.sum_duplicates()
+    width: int = max(16, _KERNEL_BLOCK // max(1, t))
+    q_t = sp.vstack([mp.T for mp in p_maps]).tocsc()  # (m n, t)
+    out = np.zeros((n, n))
+    for s in range(0, t, width):
+        e = min(t, s + width)
+        # the lower part of K's columns s:e only (rows s: on): K[s:, s:e]
+        blk = cdist(cent[s:], cent[s:e])
+        # pairs needing more than the centroid rule, each once (row after column)
+        r, c = np.nonzero((blk < reach[s:, None]) | (blk < reach[None, s:e]))
+        below = r > c
+        r, c = r[below], c[below]
+        dist = blk[r, c]
+        diag = np.arange(e - s)
+        blk[diag, diag] = 1.0  # self pairs are written over below: no 1/0
+        np.divide(1.0, blk, out=blk)
+        blk[diag, diag] = self_per_m[s:e]
+        # the rules are applied in the triangles' given order (a < b), as everywhere
+        ta, tb = order[s + c], order[s + r]
+        vals = _pair_values(tri, np.minimum(ta, tb), np.maximum(ta, tb), dist, near_diameters)
+        blk[r, c] = vals
+        inside = r < e - s  # both in the diagonal block: its upper half too
+        blk[c[inside], r[inside]] = vals[inside]
+        # the rows below the diagonal block stand for their mirror images too
+        blk[e - s :] *= 2.0
+        y = np.asarray(q_t[:, s:] @ blk)  # (m n, e − s)
+        touched = [mp.indices[mp.indptr[s] : mp.indptr[e]] for mp in p_maps]
+        nodes = np.unique(np.concatenate(touched))
+        if len(nodes) == 0:
+            continue
+        acc = np.zeros((len(nodes), n))
+        for m, mp in enumerate(p_maps):
+            # P[S] restricted to its nodes, dense (e − s, nodes)
+            sub = mp[s:e]
+            dense = np.zeros((e - s, len(nodes)))
+            dense[
+                np.repeat(np.arange(e - s), np.diff(sub.indptr)),
+                np.searchsorted(nodes, sub.indices),
+            ] = sub.data
+            acc += dense.T @ y[m * n : (m + 1) * n].T
+        out[nodes] += acc
+    return out
 
 
 # --------------------------------------------------------------------------------------
@@ -826,8 +1114,9 @@ class SymmetricReduction:
         SymmetricReduction
         """
         n = len(r_mat)
-        low = sla.cholesky(r_mat, lower=True)
-        c, info = sla_lapack.dsygst(m_mat, low, itype=1, lower=1)
+        low = sla.cholesky(r_mat, lower=True, check_finite=False)
+        # M is symmetric: its transpose is the Fortran-ordered view LAPACK reads uncopied
+        c, info = sla_lapack.dsygst(m_mat.T, low, itype=1, lower=1)
         if info != 0:  # pragma: no cover - LAPACK argument error
             msg = f"LAPACK dsygst must succeed; got info {info}"
             raise InputError(msg)
@@ -882,7 +1171,9 @@ class SymmetricReduction:
             u (A).
         """
         z = np.broadcast_to(np.asarray(zeta, dtype=np.complex128), omega_rad_s.shape)
-        g = self._apply_q(sla.solve_triangular(self.chol, phi, lower=True)[:, None], "T")[:, 0]
+        # the factors are finite by construction: skip the checks (a pass over n² each)
+        lphi = sla.solve_triangular(self.chol, phi, lower=True, check_finite=False)
+        g = self._apply_q(lphi[:, None], "T")[:, 0]
         n = len(g)
         y = np.empty((n, len(omega_rad_s)), dtype=np.complex128)
         for k, (w, zk) in enumerate(zip(omega_rad_s, z, strict=True)):
@@ -891,8 +1182,11 @@ class SymmetricReduction:
             band[1] = zk + 1j * w * self.diag_s
             band[2, :-1] = 1j * w * self.offdiag_s
             y[:, k] = sla.solve_banded((1, 1), band, -1j * w * g)
-        qy = self._apply_q(y.real, "N") + 1j * self._apply_q(y.imag, "N")
-        u = sla.solve_triangular(self.chol.T, qy, lower=False)
+        # real and imaginary parts side by side: one pass over Q and one over L
+        n_f = len(omega_rad_s)
+        qy = self._apply_q(np.concatenate([y.real, y.imag], axis=1), "N")
+        ur = sla.solve_triangular(self.chol.T, qy, lower=False, check_finite=False)
+        u = ur[:, :n_f] + 1j * ur[:, n_f:]
         return np.asarray(u.T, dtype=np.complex128)
 
 
@@ -1059,31 +1353,48 @@ class SheetModel:
         shape = (n_p, n_t) if kind == "potential" else (n_p, n_t, 3)
         out = np.empty(shape)
         rows = max(1, _BLOCK // max(1, n_t))
+        qx = np.ascontiguousarray(qpts[:, :, 0].T)  # (3, T)
+        qy = np.ascontiguousarray(qpts[:, :, 1].T)
+        reach = _FIELD_EXACT * diam
+        near_p: list[IntArray] = []
+        near_t: list[IntArray] = []
         for s in range(0, n_p, rows):
             blk = points_m[s : s + rows]
             dz = blk[:, 2][:, None] - z[None, :]
             dz2 = dz * dz
             acc = [np.zeros((len(blk), n_t)) for _ in range(1 if kind == "potential" else 3)]
             for q in range(len(w)):
-                rx = blk[:, 0][:, None] - qpts[None, :, q, 0]
-                ry = blk[:, 1][:, None] - qpts[None, :, q, 1]
-                r2 = rx * rx + ry * ry + dz2
+                rx = blk[:, 0][:, None] - qx[q][None, :]
+                ry = blk[:, 1][:, None] - qy[q][None, :]
+                r2 = rx * rx
+                r2 += ry * ry
+                r2 += dz2
                 wa = (w[q] * self.tri_area_m2)[None, :]
                 if kind == "potential":
-                    acc[0] += wa / np.sqrt(r2)
+                    np.sqrt(r2, out=r2)
+                    np.divide(wa, r2, out=r2)
+                    acc[0] += r2
                 else:
-                    inv3 = wa / (r2 * np.sqrt(r2))
-                    acc[0] -= rx * inv3
-                    acc[1] -= ry * inv3
-                    acc[2] -= dz * inv3
-            out[s : s + rows] = acc[0] if kind == "potential" else np.stack(acc, axis=-1)
-        # closed form for the near ones
-        near = cKDTree(cent).query_ball_point(points_m, _FIELD_EXACT * float(diam.max()))
-        counts = np.fromiter(map(len, near), dtype=np.int64, count=n_p)
-        ti = np.concatenate([np.asarray(x, dtype=np.int64) for x in near] or [np.zeros(0, int)])
-        pi_ = np.repeat(np.arange(n_p), counts)
-        close = np.linalg.norm(points_m[pi_] - cent[ti], axis=1) < _FIELD_EXACT * diam[ti]
-        pi_, ti = pi_[close], ti[close]
+                    inv3 = np.sqrt(r2)
+                    inv3 *= r2
+                    np.divide(wa, inv3, out=inv3)
+                    rx *= inv3
+                    acc[0] -= rx
+                    ry *= inv3
+                    acc[1] -= ry
+                    inv3 *= dz
+                    acc[2] -= inv3
+            if kind == "potential":
+                out[s : s + rows] = acc[0]
+            else:
+                for c in range(3):
+                    out[s : s + rows, :, c] = acc[c]
+            # pairs for the closed form: within 4 diameters of the triangle's centroid
+            pb, tb = np.nonzero(cdist(blk, cent) < reach[None, :])
+            near_p.append(pb + s)
+            near_t.append(tb)
+        pi_ = np.concatenate(near_p).astype(np.int64)
+        ti = np.concatenate(near_t).astype(np.int64)
         for s in range(0, len(pi_), _BLOCK):
             a, b = pi_[s : s + _BLOCK], ti[s : s + _BLOCK]
             if kind == "potential":
@@ -1207,7 +1518,9 @@ class SheetModel:
         i_s = self.loops.series_current_a
         dz = 1j * omega * (u @ self.source_phi) / (i_s * i_s)
         # dissipated power ½ Σ_s Re(ζ_s) u_sᴴ R_s u_s (R is block-diagonal per sheet)
-        ru = u @ self.stiffness_r  # R symmetric
+        # R symmetric and real: one real product for both parts of u
+        ru_parts = np.concatenate([u.real, u.imag]) @ self.stiffness_r
+        ru = ru_parts[: len(f)] + 1j * ru_parts[len(f) :]
         loss = np.zeros(len(f))
         for s in range(len(self.sheets)):
             sel = self.unknown_sheet == s
@@ -1561,7 +1874,7 @@ def build_sheet_model(
         Pair-integral rule thresholds, see :func:`triangle_pair_integrals`.
     max_nodes : int, default 5000
         Refuse larger meshes, over all sheets: the matrices are dense (memory grows as
-        the square of the node count; about 0.5 GB at 1,800 nodes).
+        the square of the node count; about 0.35 GB at 1,800 nodes).
 
     Returns
     -------
@@ -1674,16 +1987,14 @@ def build_sheet_model(
     wdiag = sp.diags(tri_a / cond)
     r_mat = (grad_x.T @ wdiag @ grad_x + grad_y.T @ wdiag @ grad_y).toarray()
     # M = μ0/(4π) (Gxᵀ G Gx + Gyᵀ G Gy)
-    kern = triangle_pair_integrals(
-        tri_v, tri_z, node_ids=np.concatenate(ids),
-        near_diameters=near_diameters, far_diameters=far_diameters, per_unit_area=True,
-    )  # fmt: skip
-    # G = diag(A) K diag(A): fold the areas into the gradient maps
+    # G = diag(A) K diag(A), K per unit area: fold the areas into the gradient maps
     weight = sp.diags(tri_a)
-    gxt = (weight @ grad_x).T.tocsr()
-    gyt = (weight @ grad_y).T.tocsr()
-    m_mat = np.asarray(gxt @ (gxt @ kern).T + gyt @ (gyt @ kern).T)
-    m_mat = _C * 0.5 * (m_mat + m_mat.T)
+    m_mat = _inductance_matrix(
+        tri_v, tri_z, np.concatenate(ids),
+        [(weight @ grad_x).tocsr(), (weight @ grad_y).tocsr()], near_diameters, far_diameters,
+    )  # fmt: skip
+    m_mat += m_mat.T
+    m_mat *= 0.5 * _C
     phi = _source_phi(tri_v, tri_z, tri_a, grad_x, grad_y, loops)
     reduction = SymmetricReduction.of(m_mat, r_mat)
     return SheetModel(
