@@ -25,7 +25,12 @@ from scipy.spatial import cKDTree
 from fluxshadow.board.copper import LayerArtwork
 from fluxshadow.board.magnetics import Magnetic, PartOverride, identify_magnetics
 from fluxshadow.board.model import Board, FileUse, Layer
-from fluxshadow.board.outline import BoardOutline, outline_from_artwork, outline_from_rings
+from fluxshadow.board.outline import (
+    BoardOutline,
+    copper_extent,
+    outline_from_artwork,
+    outline_from_rings,
+)
 from fluxshadow.board.pads import pad_centres
 from fluxshadow.board.polarity import flash_sizes_mm, looks_negative
 from fluxshadow.board.registration import FrameFit, FrameOverride, apply_fit, fit_frame, invert_fit
@@ -113,17 +118,20 @@ def _pick_placement(
 
 
 def _extent(outline: BoardOutline | None, records: Sequence[ArtworkRecord]) -> shapely.Polygon:
+    """The area a negative-image layer's plane fills: the outline without its cut-outs
+    (they are cut from the copper by the outline, not by the image), else the copper
+    extent of the positive layers (:func:`~fluxshadow.board.outline.copper_extent`)."""
     if outline is not None:
         return shapely.Polygon(outline.board.exterior)
-    boxes = []
-    for rec in records:
-        if rec.n_objects and not rec.negative_image:
-            v = np.vstack([rec.obj_xy, rec.vertices]) if len(rec.vertices) else rec.obj_xy
-            boxes.append((*v.min(axis=0), *v.max(axis=0)))
-    if not boxes:
+    points = [
+        np.vstack([rec.obj_xy, rec.vertices]) if len(rec.vertices) else rec.obj_xy
+        for rec in records
+        if rec.n_objects and not rec.negative_image
+    ]
+    if not points:
         return shapely.Polygon()
-    b = np.array(boxes)
-    return shapely.box(b[:, 0].min(), b[:, 1].min(), b[:, 2].max(), b[:, 3].max())
+    p = np.vstack(points)
+    return copper_extent(np.hstack([p, p]))
 
 
 def _holes(drills: Sequence[DrillRecord]) -> npt.NDArray[np.float64]:

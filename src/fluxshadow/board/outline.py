@@ -17,7 +17,7 @@ from shapely.geometry.base import BaseGeometry
 
 from fluxshadow.io.records import REGION, TRACK, ArtworkRecord
 
-__all__ = ["BoardOutline", "outline_from_artwork", "outline_from_rings"]
+__all__ = ["BoardOutline", "copper_extent", "outline_from_artwork", "outline_from_rings"]
 
 _SNAP_MM = 0.01
 """Drawn outline segments whose ends lie this close are joined (common practice: outline
@@ -109,3 +109,56 @@ def outline_from_rings(
     if cutouts:
         board = shapely.difference(outer, shapely.union_all(cutouts))
     return BoardOutline(board=board, cutouts=tuple(cutouts), source=source)
+
+
+_STRAY_GAP_MM = 2.0
+"""Copper-free gap that sets a cluster of copper objects apart from the rest (mm)."""
+
+_STRAY_SHARE = 0.01
+"""Clusters beyond such a gap with fewer than this share of all objects are not the board."""
+
+
+def _main_span(lo: npt.NDArray[np.float64], hi: npt.NDArray[np.float64]) -> tuple[float, float]:
+    """Span along one axis of the object intervals, without small stray clusters (mm).
+
+    The intervals ``[lo, hi]`` are grouped into clusters separated by more than
+    ``_STRAY_GAP_MM`` of empty axis; clusters holding fewer than ``_STRAY_SHARE`` of all
+    objects (panel fiducials and tooling marks drawn outside the board) are left out,
+    unless no cluster is large enough, when the largest one is kept.
+    """
+    order = np.argsort(lo, kind="stable")
+    lo, hi = lo[order], hi[order]
+    reach = np.maximum.accumulate(hi)
+    breaks = np.flatnonzero(lo[1:] > reach[:-1] + _STRAY_GAP_MM) + 1
+    starts = np.concatenate(([0], breaks))
+    ends = np.concatenate((breaks, [len(lo)]))
+    counts = ends - starts
+    keep = counts >= _STRAY_SHARE * len(lo)
+    if not keep.any():
+        keep = counts == counts.max()
+    return float(lo[starts[keep]].min()), float(reach[ends[keep] - 1].max())
+
+
+def copper_extent(boxes: npt.NDArray[np.float64]) -> shapely.Polygon:
+    """The board's extent from the boxes of its copper objects, when it has no outline.
+
+    The bounding box of all boxes, leaving out small clusters that stand more than
+    ``_STRAY_GAP_MM`` apart from the rest along an axis (fiducials and tooling marks of a
+    fabrication panel, which would otherwise stretch the "board" far beyond its edge).
+
+    Parameters
+    ----------
+    boxes : ndarray, shape (n, 4)
+        ``(xmin, ymin, xmax, ymax)`` per object in mm (a point is a box of zero size).
+
+    Returns
+    -------
+    shapely.Polygon
+        A rectangle in mm; empty when ``boxes`` is.
+    """
+    b = np.asarray(boxes, dtype=np.float64).reshape(-1, 4)
+    if not len(b):
+        return shapely.Polygon()
+    x0, x1 = _main_span(b[:, 0], b[:, 2])
+    y0, y1 = _main_span(b[:, 1], b[:, 3])
+    return shapely.box(x0, y0, x1, y1)

@@ -17,6 +17,7 @@ from shapely.geometry.base import BaseGeometry
 
 from fluxshadow.board.magnetics import Magnetic
 from fluxshadow.board.model import Board, Layer
+from fluxshadow.board.outline import copper_extent
 from fluxshadow.checks.model import RingInfo
 from fluxshadow.checks.settings import Settings
 
@@ -109,34 +110,6 @@ def winding_radius_mm(magnetic: Magnetic, settings: Settings) -> float:
     return settings.winding_radius_fraction * min(magnetic.body_mm)
 
 
-_STRAY_GAP_MM = 2.0
-"""Copper-free gap that sets a cluster of copper objects apart from the rest (mm)."""
-
-_STRAY_SHARE = 0.01
-"""Clusters beyond such a gap with fewer than this share of all objects are not the board."""
-
-
-def _main_span(lo: npt.NDArray[np.float64], hi: npt.NDArray[np.float64]) -> tuple[float, float]:
-    """Span along one axis of the object intervals, without small stray clusters (mm).
-
-    The intervals ``[lo, hi]`` are grouped into clusters separated by more than
-    ``_STRAY_GAP_MM`` of empty axis; clusters holding fewer than ``_STRAY_SHARE`` of all
-    objects (panel fiducials and tooling marks drawn outside the board) are left out,
-    unless no cluster is large enough, when the largest one is kept.
-    """
-    order = np.argsort(lo, kind="stable")
-    lo, hi = lo[order], hi[order]
-    reach = np.maximum.accumulate(hi)
-    breaks = np.flatnonzero(lo[1:] > reach[:-1] + _STRAY_GAP_MM) + 1
-    starts = np.concatenate(([0], breaks))
-    ends = np.concatenate((breaks, [len(lo)]))
-    counts = ends - starts
-    keep = counts >= _STRAY_SHARE * len(lo)
-    if not keep.any():
-        keep = counts == counts.max()
-    return float(lo[starts[keep]].min()), float(reach[ends[keep] - 1].max())
-
-
 def board_extent(board: Board) -> BaseGeometry:
     """The board's shape (mm): outline polygon with cut-outs, else the copper extent.
 
@@ -156,10 +129,7 @@ def board_extent(board: Board) -> BaseGeometry:
     ]
     if not boxes:
         return shapely.Polygon()
-    b = np.concatenate(boxes)
-    x0, x1 = _main_span(b[:, 0], b[:, 2])
-    y0, y1 = _main_span(b[:, 1], b[:, 3])
-    return shapely.box(x0, y0, x1, y1)
+    return copper_extent(np.concatenate(boxes))
 
 
 def _parts(geom: BaseGeometry) -> list[BaseGeometry]:

@@ -103,6 +103,7 @@ __all__ = [
     "TraceFigures",
     "apply_figures",
     "delta_l_h",
+    "is_coaxial_vertical",
     "layer_stack",
     "magnetic_figures",
     "needs_sheet",
@@ -272,7 +273,9 @@ def layer_stack(
 # ----------------------------------------------------------------------------- kernels
 
 
-def _is_coaxial_vertical(source: SourceModel) -> bool:
+def is_coaxial_vertical(source: SourceModel) -> bool:
+    """Whether every loop of the source is horizontal and centred on the part's axis
+    (so the Hankel form of the plane models applies)."""
     c = source.centre_m
     return bool(
         np.all(np.abs(source.axis_vec[:, 2]) > 1.0 - 1e-12) and np.all(np.abs(c[:, :2]) < 1e-12)
@@ -357,7 +360,7 @@ def shielding_below_db(
     a = float(np.max(source.radius_m))
     offs = np.asarray((0.0, a) if offsets_m is None else offsets_m, dtype=np.float64)
     air = np.zeros_like(stack.sigma_s_per_m)
-    if _is_coaxial_vertical(source):
+    if is_coaxial_vertical(source):
         rho = np.abs(offs)
         depth = np.full(len(rho), obs_depth_m)
         fields = []
@@ -422,7 +425,7 @@ def delta_l_h(
     """
     if not stack.has_conductor:
         return 0.0
-    if _is_coaxial_vertical(source):
+    if is_coaxial_vertical(source):
         dl, _dr = coaxial_loops_impedance_change_layers(
             source.radius_m, source.centre_m[:, 2], freq_hz, stack.thickness_m,
             stack.sigma_s_per_m, source.current_per_a,

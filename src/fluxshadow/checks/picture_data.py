@@ -36,7 +36,7 @@ from fluxshadow.checks.analysis import (
     analyse_magnetic,
     board_extent,
 )
-from fluxshadow.checks.figures import layer_stack
+from fluxshadow.checks.figures import is_coaxial_vertical, layer_stack
 from fluxshadow.checks.model import Finding, Report
 from fluxshadow.checks.operating import OperatingPoint, operating_points
 from fluxshadow.checks.settings import Settings, settings_from_config
@@ -333,13 +333,6 @@ def _metric(f: Finding | None, key: str) -> float | None:
 # ----------------------------------------------------------------------------- field maps
 
 
-def _is_coaxial_vertical(source: SourceModel) -> bool:
-    return bool(
-        np.all(np.abs(source.axis_vec[:, 2]) > 1.0 - 1e-12)
-        and np.all(np.abs(source.centre_m[:, :2]) < 1e-12)
-    )
-
-
 def _fft_field(
     source: SourceModel,
     xy_m: FloatArray,
@@ -413,7 +406,7 @@ def field_map(
             pts, source.centre_m, source.axis_vec, source.radius_m, source.current_per_a
         )
         mag = np.linalg.norm(b, axis=1)
-    elif _is_coaxial_vertical(source):
+    elif is_coaxial_vertical(source):
         rho = np.hypot(xy[:, 0], xy[:, 1])
         rho_u, inverse = np.unique(np.round(rho, 9), return_inverse=True)
         b_rho, b_z = coaxial_loops_field_below_layers(
