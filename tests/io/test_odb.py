@@ -488,3 +488,26 @@ def test_camjob_edit_step_and_copper_match_gerbers() -> None:
         a, b = compose_record(rec), compose_record(gerber)
         assert a.area == pytest.approx(b.area, rel=1e-4)
         assert a.symmetric_difference(b).area < 0.05
+
+
+def test_not_populated_components_are_marked(tmp_path: Path) -> None:
+    """A component whose boolean attribute ``.no_pop`` is set (``@n .no_pop`` declared in
+    the components file, ``;n`` or ``;n=1`` on the CMP line; ODB++ Format Specification,
+    components file and system attributes, from memory) is marked not populated in its
+    description, which the magnetics step excludes; ``;n=0`` leaves it populated."""
+    root = tmp_path / "job"
+    _write_job(root)
+    comp = root / "steps" / "board" / "layers" / "comp_+_top" / "components"
+    comp.write_text(
+        "UNITS=MM\n@0 .comp_mount_type\n@1 .no_pop\n"
+        "CMP 0 10.0 20.0 0 N L7 IND_1210 ;0=1,1\nPRP Description 'power inductor'\n"
+        "CMP 1 12.0 20.0 0 N L8 IND_1210 ;0=1,1=0\n"
+        "CMP 2 14.0 20.0 0 N L9 IND_1210 ;1=1\n"
+        "CMP 3 16.0 20.0 0 N L10 IND_1210 ;0=1\n",
+        "utf-8",
+    )
+    by_ref = {p.ref: p for p in read_odb(root).placements}
+    assert by_ref["L7"].description == "not populated (ODB++ attribute .no_pop); power inductor"
+    assert "not populated" in by_ref["L9"].description
+    assert "not populated" not in by_ref["L8"].description
+    assert "not populated" not in by_ref["L10"].description
