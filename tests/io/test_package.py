@@ -20,6 +20,7 @@ from fluxshadow.io.package import (
     _Budget,
     classify_head,
     decode_head,
+    find_odb_jobs,
     open_package,
     scan_folder,
 )
@@ -533,3 +534,25 @@ def test_header_limits_refuse_before_writing(
     with open_package(archive) as pkg:
         assert "first.gbr" in pkg.files
     assert len(opened) == 2
+
+
+def test_find_odb_jobs(tmp_path: Path) -> None:
+    """An ODB++ job is a folder holding matrix/matrix, plain or compressed (.Z, .gz)."""
+    assert find_odb_jobs(tmp_path) == ()
+    (tmp_path / "gerber").mkdir()
+    (tmp_path / "gerber" / "top.gbr").write_text("G04 x*\nM02*\n")
+    job = tmp_path / "vendor" / "odb" / "matrix"
+    job.mkdir(parents=True)
+    (job / "matrix.Z").write_bytes(b"\x1f\x9d\x90")
+    assert find_odb_jobs(tmp_path) == ("vendor/odb",)
+    # the job folder itself, and nothing searched inside a job
+    (tmp_path / "vendor" / "odb" / "steps" / "x" / "matrix").mkdir(parents=True)
+    (tmp_path / "vendor" / "odb" / "steps" / "x" / "matrix" / "matrix").write_text("")
+    assert find_odb_jobs(tmp_path / "vendor" / "odb") == (".",)
+    assert find_odb_jobs(tmp_path) == ("vendor/odb",)
+    # depth limit
+    deep = tmp_path / "a" / "b" / "c" / "d" / "matrix"
+    deep.mkdir(parents=True)
+    (deep / "matrix").write_text("")
+    assert find_odb_jobs(tmp_path) == ("vendor/odb",)
+    assert find_odb_jobs(tmp_path, max_depth=4) == ("a/b/c/d", "vendor/odb")
