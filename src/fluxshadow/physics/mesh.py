@@ -1,11 +1,12 @@
 """Graded triangle meshes of plane polygons with holes, for the thin-sheet solver.
 
-Pure numpy/scipy. A polygon is an exterior ring and a list of hole rings, each an
-(n, 2) array of vertices (m) in the plane of the sheet; the closing vertex may be repeated
-or not. The mesh is graded by a :class:`SizeField`: the target edge length at a point is
-``min(h_max, min_g (size_g + grading * distance to feature group g))`` (plus ramps and
-caps, see the class), so elements are small near the features (the projection of a
-winding, copper edges) and grow linearly away from them, by ``grading`` metres per metre.
+numpy and scipy, shapely for point-in-polygon. A polygon is an exterior ring and a list
+of hole rings, each an (n, 2) array of vertices (m) in the plane of the sheet; the closing
+vertex may be repeated or not. The mesh is graded by a :class:`SizeField`: the target edge
+length at a point is ``min(h_max, min_g (size_g + grading * distance to feature group
+g))`` (plus ramps and caps, see the class), so elements are small near the features (the
+projection of a winding, copper edges) and grow linearly away from them, by ``grading``
+metres per metre.
 
 Method
 ------
@@ -13,8 +14,12 @@ Method
    its edges are cut into pieces of about the local size (equal steps of ∫ ds / h). The
    polygon's corners stay nodes, so the meshed domain is the simplified polygon exactly.
 2. Along optional guide curves (the projection of a winding) nodes are laid in layers:
-   on the curve and on offset curves both sides, about one local size apart and
-   staggered, until the size reaches h_max. These nodes stay fixed.
+   on the curve and on offset curves both sides. Each side is stepped sample by sample,
+   by (√3/2) h taken half-way to the next layer (h averaged over about h_min of curve to
+   keep the layers smooth), so the layers follow the size field where it varies along
+   the curve; points on a layer are about h apart and staggered from one layer to the
+   next. A sample stops where h reaches h_max or past a centre of curvature. These nodes
+   stay fixed.
 3. The other interior points start on a hexagonal lattice of spacing ``min h``, thinned
    at random (fixed seed, so meshes are reproducible) with probability (h_min / h)², and
    kept only inside the polygon, at least ``0.5 h`` from its boundary and ``0.7 h`` from
@@ -39,6 +44,7 @@ from math import ceil, sqrt
 
 import numpy as np
 import numpy.typing as npt
+import shapely
 from scipy.spatial import Delaunay, cKDTree
 
 from fluxshadow.errors import InputError, LimitError
@@ -61,9 +67,10 @@ Polygon = tuple[ArrayLike, Sequence[ArrayLike]]
 """A polygon: exterior ring (n, 2) and a sequence of hole rings (m_i, 2), metres."""
 
 _SEED = 20240611
-_BLOCK = 2_000_000
 _RECOVERY_ROUNDS = 30
 _MIN_BOUNDARY_GAP = 0.5
+_LAYER_WINDOW = 5
+"""Guide layers average h over this many curve samples (0.2 h_min apart) each side."""
 """Interior points keep at least this fraction of the local size from the boundary."""
 
 
@@ -327,34 +334,29 @@ def points_in_polygon(points_m: ArrayLike, rings: Sequence[ArrayLike]) -> BoolAr
     points_m : array_like, shape (n, 2)
         Points (m).
     rings : sequence of array_like, each (k, 2)
-        Closed rings (the closing vertex not repeated): an exterior ring and its holes.
+        Closed rings (the closing vertex may be repeated or not): an exterior ring and
+        its holes, the holes inside the exterior ring.
 
     Returns
     -------
     ndarray of bool, shape (n,)
         True for points inside an odd number of rings (inside the copper). Points exactly
-        on a ring may go either way.
+        on a ring are outside.
 
-    References
-    ----------
-    Crossing-number test (textbook: a ray from the point crosses the boundary an odd
-    number of times when the point is inside).
+    Notes
+    -----
+    One vectorised call of shapely's ``contains_xy`` on a prepared polygon of all the
+    rings: its point locator counts ray crossings over the segments of every ring
+    (even-odd, so it needs no valid polygon) and reports points on a segment as on the
+    boundary (not contained). Points outside the first ring's bounding box are outside.
     """
     p = np.asarray(points_m, dtype=np.float64).reshape(-1, 2)
-    a, b = _segments_of_rings([np.asarray(r, dtype=np.float64) for r in rings])
-    inside = np.zeros(len(p), dtype=np.bool_)
-    step = max(1, _BLOCK // max(1, len(a)))
-    for s in range(0, len(p), step):
-        px = p[s : s + step, 0:1]
-        py = p[s : s + step, 1:2]
-        straddle = (a[None, :, 1] > py) != (b[None, :, 1] > py)
-        with np.errstate(divide="ignore", invalid="ignore"):  # horizontal edges never straddle
-            x_cross = a[None, :, 0] + (py - a[None, :, 1]) * (b[None, :, 0] - a[None, :, 0]) / (
-                b[None, :, 1] - a[None, :, 1]
-            )
-        hits = straddle & (px < x_cross)
-        inside[s : s + step] = (np.count_nonzero(hits, axis=1) % 2) == 1
-    return inside
+    rs = [np.asarray(r, dtype=np.float64).reshape(-1, 2) for r in rings]
+    if len(p) == 0 or not rs:
+        return np.zeros(len(p), dtype=np.bool_)
+    poly = shapely.Polygon(rs[0], rs[1:])
+    shapely.prepare(poly)
+    return np.asarray(shapely.contains_xy(poly, p[:, 0], p[:, 1]), dtype=np.bool_)
 
 
 def _clean_ring(ring: ArrayLike, what: str) -> FloatArray:
@@ -557,7 +559,9 @@ def _smooth(
     return p
 
 
-def _resample_by_size(dense: FloatArray, h: FloatArray, phase: float) -> IntArray:
+def _resample_by_size(
+    dense: FloatArray, h: FloatArray, phase: float, *, min_picks: int = 3
+) -> IntArray:
     """Pick points of a densely sampled closed curve about one local size apart.
 
     The curve may have gaps (dropped samples): steps longer than four samples' length are
@@ -575,7 +579,10 @@ def _resample_by_size(dense: FloatArray, h: FloatArray, phase: float) -> IntArra
     inc = 0.5 * (inv_h + np.roll(inv_h, -1)) * np.where(gap, 0.0, step)
     cum = np.concatenate([[0.0], np.cumsum(inc)])  # (len + 1,), closing step last
     if not np.any(gap):
-        n_pick = max(3, round(float(cum[-1])))
+        n_pick = round(float(cum[-1]))
+        if n_pick < min_picks:  # a layer shrunk around a centre of curvature: none
+            return np.zeros(0, dtype=np.int64)
+        n_pick = max(3, n_pick)
         targets = (np.arange(n_pick) + phase) * (cum[-1] / n_pick)
         picks = np.searchsorted(cum[:-1], targets)
         return np.asarray(np.unique(np.minimum(picks, len(dense) - 1)), dtype=np.int64)
@@ -588,68 +595,128 @@ def _resample_by_size(dense: FloatArray, h: FloatArray, phase: float) -> IntArra
     return np.asarray(picks, dtype=np.int64)
 
 
+def _circular_mean(values: FloatArray, half: int) -> FloatArray:
+    """Moving average over 2 half + 1 neighbours of a closed sequence, shape as values."""
+    if half <= 0 or len(values) < 2 * half + 1:
+        return values
+    padded = np.concatenate([values[-half:], values, values[:half]])
+    cum = np.concatenate([[0.0], np.cumsum(padded)])
+    return np.asarray((cum[2 * half + 1 :] - cum[: -2 * half - 1]) / (2 * half + 1))
+
+
 def _guide_points(
     guides: Sequence[FloatArray], size: SizeField, rings: Sequence[FloatArray]
 ) -> FloatArray:
     """Nodes in layers along guide curves: on each curve and on offset curves both sides.
 
-    Layer k sits at offset d_k with d_(k+1) = d_k + (√3/2) h(layer k), points about h
-    apart and staggered by half a spacing from one layer to the next (near-equilateral
-    triangles aligned with the curve). Layers stop where h reaches h_max.
+    Each side of a curve is stepped on its own, point by point: the point of layer k+1
+    sits at offset d_(k+1) = d_k + (√3/2) h(point of layer k) along the normal of its
+    curve sample, so the layers follow the size field where it varies along the curve
+    (finer near a copper edge, capped inside the winding) instead of all taking its
+    smallest value. Points along a layer are about h apart and staggered by half a
+    spacing from one layer to the next (near-equilateral triangles aligned with the
+    curve). A sample stops after the layer where h reaches h_max, or once its offset
+    passes a centre of curvature of the curve.
     """
     out: list[FloatArray] = []
     accepted: FloatArray = np.concatenate(rings)
     tree = cKDTree(accepted)
+    step_factor = 0.5 * sqrt(3.0)
+
+    def emit(pts: FloatArray, h_pts: FloatArray, layer: int) -> None:
+        nonlocal accepted, tree
+        inside = points_in_polygon(pts, rings)
+        pts, h_pts = pts[inside], h_pts[inside]
+        if len(pts) == 0:
+            return
+        # an offset layer too short for three picks gets none here (see below)
+        sel = _resample_by_size(pts, h_pts, 0.5 * (layer % 2), min_picks=3 if layer else 0)
+        centre = pts.mean(axis=0)
+        shrunk = layer > 0 and float(np.max(np.hypot(*(pts - centre).T))) < 0.5 * float(
+            np.mean(h_pts)
+        )
+        if len(sel) == 0 or shrunk:
+            # a layer shrunk to less than 3 h around a centre of curvature: a small
+            # triangle (side 0.52 h) centred there instead, so that no node sits on the
+            # centre (the winding axis, where the field near the sheet is evaluated: a
+            # node there puts a kink of the stream function under the evaluation point)
+            h_c = float(np.mean(h_pts))
+            ang = np.pi / 2.0 + 2.0 * np.pi / 3.0 * np.arange(3)
+            pick = centre + 0.3 * h_c * np.column_stack([np.cos(ang), np.sin(ang)])
+            h_pick = np.full(3, h_c)
+        else:
+            pick, h_pick = pts[sel], h_pts[sel]
+        d_acc, _ = tree.query(pick)
+        keep = d_acc > 0.5 * h_pick
+        # a layer shorter than a few h (near a centre of curvature) still gets three
+        # picks: of two picks nearer than 0.5 h, drop the later one
+        pairs = cKDTree(pick).query_pairs(0.5 * float(h_pick.max()), output_type="ndarray")
+        if len(pairs):
+            gap = np.hypot(*(pick[pairs[:, 0]] - pick[pairs[:, 1]]).T)
+            close = gap <= 0.5 * np.minimum(h_pick[pairs[:, 0]], h_pick[pairs[:, 1]])
+            keep[pairs[close].max(axis=1)] = False
+        pick, h_pick = pick[keep], h_pick[keep]
+        if len(pick):
+            pick = pick[_boundary_distance(pick, rings) > _MIN_BOUNDARY_GAP * h_pick]
+        if len(pick):
+            out.append(pick)
+            accepted = np.concatenate([accepted, pick])
+            tree = cKDTree(accepted)
+
     for curve in guides:
         c = np.asarray(curve, dtype=np.float64)
-        # dense closed sampling of the curve
+        # dense closed sampling of the curve: each segment cut into ceil(length / fine)
+        # equal steps, all segments at once
         nxt = np.roll(c, -1, axis=0)
         seg = np.hypot(*(nxt - c).T)
         fine = 0.2 * size.h_min_m
-        dense_parts = [
-            a
-            + np.linspace(0.0, 1.0, max(1, ceil(length / fine)), endpoint=False)[:, None] * (b - a)
-            for a, b, length in zip(c, nxt, seg, strict=True)
-        ]
-        dense = np.concatenate(dense_parts)
+        n_seg = np.maximum(1, np.ceil(seg / fine).astype(np.int64))
+        which = np.repeat(np.arange(len(c)), n_seg)
+        k_in = np.arange(len(which)) - np.repeat(np.cumsum(n_seg) - n_seg, n_seg)
+        dense = c[which] + (k_in * (1.0 / n_seg)[which])[:, None] * (nxt - c)[which]
         tan = np.roll(dense, -1, axis=0) - np.roll(dense, 1, axis=0)
         tlen = np.hypot(tan[:, 0], tan[:, 1])
         ok_t = tlen > 1e-3 * fine
-        normal = np.zeros_like(dense)
-        normal[ok_t] = np.column_stack([tan[ok_t, 1], -tan[ok_t, 0]]) / tlen[ok_t, None]
+        dense = dense[ok_t]
+        normal = np.column_stack([tan[ok_t, 1], -tan[ok_t, 0]]) / tlen[ok_t, None]
+        if len(dense) == 0:
+            continue
         curve_tree = cKDTree(dense)
-        offset = 0.0
-        layer = 0
-        while True:
-            signs = (0.0,) if offset == 0.0 else (1.0, -1.0)
-            h_layer = size.h_max_m
-            for sgn in signs:
-                pts = dense[ok_t] + sgn * offset * normal[ok_t]
-                if offset > 0.0:
-                    dist, _ = curve_tree.query(pts)
-                    pts = pts[dist > 0.95 * offset]  # offset past a centre of curvature
-                if len(pts) == 0:
-                    continue
-                pts = pts[points_in_polygon(pts, rings)]
-                if len(pts) == 0:
-                    continue
-                h_pts = size(pts)
-                h_layer = min(h_layer, float(h_pts.min()))
-                sel = _resample_by_size(pts, h_pts, 0.5 * (layer % 2))
-                pick, h_pick = pts[sel], h_pts[sel]
-                d_acc, _ = tree.query(pick)
-                keep = d_acc > 0.5 * h_pick
-                pick, h_pick = pick[keep], h_pick[keep]
-                if len(pick):
-                    pick = pick[_boundary_distance(pick, rings) > _MIN_BOUNDARY_GAP * h_pick]
-                if len(pick):
-                    out.append(pick)
-                    accepted = np.concatenate([accepted, pick])
-                    tree = cKDTree(accepted)
-            if h_layer >= size.h_max_m or offset > 1e3 * size.h_max_m:
-                break
-            offset += 0.5 * sqrt(3.0) * h_layer
-            layer += 1
+        # h along a layer, averaged over about one h_min of curve each side (five
+        # samples): the steps, and so the offset curves, stay smooth where h ripples
+        # between the feature points of the size field
+        h_raw0 = size(dense)
+        h0 = _circular_mean(h_raw0, _LAYER_WINDOW)
+        emit(dense, h0, 0)
+        for sgn in (1.0, -1.0):
+            # first step by h half-way out too
+            h_half_raw = size(dense + sgn * (0.5 * step_factor * h0)[:, None] * normal)
+            offset = step_factor * _circular_mean(h_half_raw, _LAYER_WINDOW)
+            h_raw = h_raw0.copy()
+            active = h_raw0 < size.h_max_m
+            layer = 1
+            while np.any(active):
+                # h is re-evaluated at the active samples; stopped ones keep their last
+                # value for their neighbours' averages
+                idx = np.flatnonzero(active)
+                off = offset[idx]
+                pts = dense[idx] + sgn * off[:, None] * normal[idx]
+                h_raw[idx] = size(pts)
+                h_pts = _circular_mean(h_raw, _LAYER_WINDOW)[idx]
+                # past a centre of curvature: a curve point nearer than 0.95 offset
+                # (those samples stop for good)
+                dist, _ = curve_tree.query(
+                    pts, distance_upper_bound=np.nextafter(0.95 * float(off.max()), 1.0)
+                )
+                past = dist <= 0.95 * off
+                emit(pts[~past], h_pts[~past], layer)
+                # step by h half-way to the next layer (h grows away from the curve)
+                half = pts + sgn * (0.5 * step_factor * h_pts)[:, None] * normal[idx]
+                h_half_raw[idx] = size(half)
+                offset[idx] = off + step_factor * _circular_mean(h_half_raw, _LAYER_WINDOW)[idx]
+                active[idx[past | (h_raw[idx] >= size.h_max_m)]] = False
+                active &= offset <= 1e3 * size.h_max_m
+                layer += 1
     if not out:
         return np.zeros((0, 2))
     return np.concatenate(out)
