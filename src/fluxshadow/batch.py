@@ -18,6 +18,7 @@ Example::
 
 from __future__ import annotations
 
+import contextlib
 import multiprocessing
 import os
 import time
@@ -26,6 +27,8 @@ from concurrent.futures import ProcessPoolExecutor, as_completed
 from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
+
+from threadpoolctl import threadpool_limits
 
 from fluxshadow.checks.model import SEVERITY_RANK
 from fluxshadow.errors import ConfigError, FluxshadowError, InputError
@@ -264,7 +267,9 @@ def collect_packages(source: str | os.PathLike[str]) -> list[Path]:
 # --------------------------------------------------------------------------- one package
 
 
-def check_package(path: str, config: str | None = None) -> dict[str, Any]:
+def check_package(
+    path: str, config: str | None = None, blas_threads: int | None = None
+) -> dict[str, Any]:
     """Load and check one package; the worker function of a batch.
 
     Never raises for a bad package: the error is returned.
@@ -276,6 +281,12 @@ def check_package(path: str, config: str | None = None) -> dict[str, Any]:
     config : str, optional
         A ``fluxshadow.toml`` used for this package (default: the one found beside or
         inside it).
+    blas_threads : int, optional
+        Threads the BLAS library (the sheet solver's dense algebra) may use while this
+        package is checked; default: as configured in the process. Worker processes
+        sharing a machine get ``cores // workers``: with every worker's BLAS spinning on
+        all cores the batch was measured 3 times slower (33.6 s against 11.4 s for 50
+        packages on 2 workers).
 
     Returns
     -------
@@ -288,9 +299,15 @@ def check_package(path: str, config: str | None = None) -> dict[str, Any]:
     from fluxshadow.report.json_report import report_to_dict
 
     t0 = time.perf_counter()
+    limit = (
+        threadpool_limits(limits=blas_threads, user_api="blas")
+        if blas_threads is not None
+        else contextlib.nullcontext()
+    )
     try:
-        board = load_package(path, config=config)
-        report: dict[str, Any] | None = report_to_dict(run_checks(board))
+        with limit:
+            board = load_package(path, config=config)
+            report: dict[str, Any] | None = report_to_dict(run_checks(board))
         error = ""
     except FluxshadowError as exc:
         report, error = None, str(exc)
@@ -335,7 +352,8 @@ def _run_processes(
     report: Callable[[int, dict[str, Any]], None],
 ) -> None:
     with ProcessPoolExecutor(max_workers=jobs, mp_context=_mp_context()) as pool:
-        futures = {pool.submit(check_package, p, config): i for i, p in enumerate(paths)}
+        threads = max(1, (os.cpu_count() or 1) // jobs)
+        futures = {pool.submit(check_package, p, config, threads): i for i, p in enumerate(paths)}
         for fut in as_completed(futures):
             i = futures[fut]
             try:

@@ -109,6 +109,31 @@ def test_check_package_returns_plain_data_and_never_raises(batch_dir: Path) -> N
     assert "does not exist" in missing["error"]
 
 
+def test_check_package_limits_blas_threads_while_checking(
+    batch_dir: Path, monkeypatch: pytest.MonkeyPatch
+) -> None:
+    """A batch worker's BLAS runs on its share of the cores (threadpoolctl), then is
+    restored; the figures do not depend on it."""
+    import threadpoolctl
+
+    from fluxshadow.checks import run as run_module
+
+    seen: list[int] = []
+    real = run_module.run_checks
+
+    def spy(board: object) -> object:
+        seen.extend(
+            i["num_threads"] for i in threadpoolctl.threadpool_info() if i["user_api"] == "blas"
+        )
+        return real(board)  # type: ignore[arg-type]
+
+    monkeypatch.setattr(run_module, "run_checks", spy)
+    limited = check_package(str(batch_dir / "mini4"), None, 1)
+    assert seen
+    assert set(seen) == {1}
+    assert limited["report"] == _direct(batch_dir / "mini4")
+
+
 def test_processes_match_direct_checks_and_keep_order(batch_dir: Path) -> None:
     paths = collect_packages(batch_dir)
     seen: list[tuple[int, int]] = []
