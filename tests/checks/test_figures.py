@@ -423,6 +423,34 @@ def test_demo_figures_at_the_operating_points(demo_report: Report) -> None:
     assert re.search(r"SE \d+ dB, dL [-+]\d", text)
 
 
+def test_demo_rings_on_two_layers_are_solved_coupled() -> None:
+    """The demo's L4 sits over closed rings on L2 and L3 (docs/example.md): both layers go
+    into one sheet system. The upper ring's eddy currents shield the lower ring, so L3's
+    ring current is well below that of L3 solved alone (the two-filament circuit of
+    tests/reference/test_ring_reference.py shows the same), and the per-layer shares of ΔL
+    add up to the system's."""
+    board = fluxshadow.load_package(DEMO)
+    m = board.magnetic("L4")
+    settings = Settings()
+    geo = analyse_magnetic(board, m, settings)
+    op = operating_points(board.magnetics, board.config)["L4"]
+    src = source_model(m, None, settings, inductance_h=op.inductance_h)
+    k2, k3 = (i for i, lg in enumerate(geo.layers) if lg.layer.name in ("L2", "L3"))
+    both = sheet_layer_figures(geo, src, op, only=[k2, k3])
+    alone = sheet_layer_figures(geo, src, op, only=[k3])
+    f2, f3 = both.layers["L2"], both.layers["L3"]
+    assert f2["sheet_coupled_layers"] == f3["sheet_coupled_layers"] == "L2+L3"
+    assert "sheet_coupled_layers" not in alone.layers["L3"]
+    assert 0.0 < f3["ring_current_a"] < 0.5 * alone.layers["L3"]["ring_current_a"]  # type: ignore[operator]
+    sol, idx = both.solutions["L3"]
+    assert both.solutions["L2"][0] is sol
+    assert idx == 1
+    total = float(sol.delta_l_h[0]) * 1e9
+    assert f2["sheet_delta_l_nh"] + f3["sheet_delta_l_nh"] == pytest.approx(total, rel=1e-3)  # type: ignore[operator]
+    rings = [r for r in both.rings if r.closed]
+    assert {r.layer for r in rings} == {"L2", "L3"}
+
+
 def _demo_copy(tmp_path: Path, *, horizontal: bool, regulator: bool = True) -> Board:
     folder = tmp_path / "demo"
     shutil.copytree(DEMO, folder)

@@ -197,6 +197,59 @@ def test_flux_through_the_ring_drops_as_the_filament_model_says(
     np.testing.assert_allclose(np.abs(open_ / open_src), 1.0, atol=0.01)
 
 
+GAP_RINGS = 1.0 * MM
+"""Mid-plane to mid-plane distance of the two stacked annuli (2.5 strip widths: filaments
+at that distance stand for the strips, common practice)."""
+
+
+@pytest.fixture(scope="module")
+def two_annuli() -> SheetSolution:
+    ring = (_circle(B_IN + W_STRIP), [_circle(B_IN)[::-1]])
+    upper = PlaneSheet.from_polygons([ring], z_m=-T / 2, thickness_m=T, sigma_s_per_m=SIGMA)
+    lower = PlaneSheet.from_polygons(
+        [ring], z_m=-T / 2 - GAP_RINGS, thickness_m=T, sigma_s_per_m=SIGMA
+    )
+    coil = LoopSource.from_arrays([0.0, 0.0, H_COIL], [0.0, 0.0, 1.0], A_COIL, N_TURNS)
+    return build_sheet_model([upper, lower], coil, **MESH).solve(FREQS)  # type: ignore[arg-type]
+
+
+def test_two_stacked_annuli_match_the_coupled_filament_circuit(
+    two_annuli: SheetSolution,
+) -> None:
+    """Two sheets in one system: the ring currents of two coaxial annuli 1 mm apart within
+    10 % (magnitude) and 0.1 rad (phase) of the two-filament circuit
+
+        (R + jωL) I1 + jω M12 I2 = −jω M1 N I
+        jω M12 I1 + (R + jωL) I2 = −jω M2 N I
+
+    with M1, M2 and M12 from Maxwell's formula for coaxial circles (physics reference
+    row 6; Maxwell, *Treatise* §701) and R, L of one ring as above. The upper ring
+    shields the lower one: its current is well below that of the lower ring alone."""
+    omega = 2 * np.pi * FREQS
+    m1 = M_COIL
+    m2 = float(mutual_inductance_coaxial_h(A_COIL, R_MEAN, H_COIL + T / 2 + GAP_RINGS))
+    m12 = float(mutual_inductance_coaxial_h(R_MEAN, R_MEAN, GAP_RINGS))
+    expected = []
+    for w in omega:
+        z = np.array(
+            [[R_RING + 1j * w * L_RING, 1j * w * m12], [1j * w * m12, R_RING + 1j * w * L_RING]]
+        )
+        expected.append(np.linalg.solve(z, -1j * w * N_TURNS * np.array([m1, m2])))
+    exp = np.array(expected)
+    got = two_annuli.ring_current_a
+    assert got.shape == (3, 2)
+    np.testing.assert_array_equal(two_annuli.model.hole_sheet, [0, 1])
+    np.testing.assert_allclose(np.abs(got), np.abs(exp), rtol=0.10)
+    assert np.all(np.abs(np.angle(got / exp)) < 0.1)
+    alone = -1j * omega * m2 * N_TURNS / (R_RING + 1j * omega * L_RING)
+    assert np.all(np.abs(got[:, 1]) < 0.8 * np.abs(alone))
+    # the system's ΔL splits into the two sheets' shares, Re(Φᵀu) summed by sheet
+    model = two_annuli.model
+    terms = np.real(model.source_phi[None, :] * two_annuli.unknowns)
+    shares = [terms[:, np.asarray(model.unknown_sheet) == s].sum(axis=1) for s in (0, 1)]
+    np.testing.assert_allclose(shares[0] + shares[1], two_annuli.delta_l_h, rtol=1e-9)
+
+
 # ----------------------------------------------------------------------------- board level
 
 _W = 30.0

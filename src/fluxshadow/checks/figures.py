@@ -511,27 +511,33 @@ def _lines(geom: BaseGeometry) -> list[FloatArray]:
 
 
 def _sheet_path_mutual_h(
-    sols: Sequence[SheetSolution], path_m: FloatArray, image_z_m: float | None
+    sols: Sequence[tuple[SheetSolution, Sequence[int]]],
+    path_m: FloatArray,
+    image_z_m: float | None,
 ) -> complex:
-    """∮ A·dl of the sheet currents around a closed path, per ampere of winding current.
+    """∮ A·dl of sheet currents around a closed path, per ampere of winding current.
 
-    With a perfectly conducting return plane at ``image_z_m`` the sheet currents' images
-    add A_img(p) = -A(mirror of p) (horizontal currents: reversed images).
+    ``sols`` pairs each solution with the sheets of it whose currents count. With a
+    perfectly conducting return plane at ``image_z_m`` the sheet currents' images add
+    A_img(p) = -A(mirror of p) (horizontal currents: reversed images).
     """
     total = 0j
-    for sol in sols:
+    for sol, sheets in sols:
         # A of the sheet varies on the scale of its distance to the path
-        gap = float(np.min(np.abs(path_m[:, 2][:, None] - sol.model.current_z_m[None, :])))
+        zs = np.asarray(sol.model.current_z_m)[np.asarray(sheets, dtype=np.int64)]
+        gap = float(np.min(np.abs(path_m[:, 2][:, None] - zs[None, :])))
         piece = min(max(2.0 * gap, _SHEET_PATH_PIECE_M), 4.0 * _SHEET_PATH_PIECE_M)
         pts, dl = path_gauss_points(path_m, closed=True, max_piece_m=piece, order=6)
         if len(pts) == 0:
             continue
         if image_z_m is None:
-            a = sol.vector_potential_at(pts, include_source=False)[0]
+            a = sol.vector_potential_at(pts, include_source=False, sheets=sheets)[0]
         else:
             mirrored = pts.copy()
             mirrored[:, 2] = 2.0 * image_z_m - pts[:, 2]
-            both = sol.vector_potential_at(np.concatenate([pts, mirrored]), include_source=False)
+            both = sol.vector_potential_at(
+                np.concatenate([pts, mirrored]), include_source=False, sheets=sheets
+            )
             a = both[0, : len(pts)] - both[0, len(pts) :]
         total += complex(np.sum(a * dl))
     return total
@@ -546,16 +552,23 @@ def _trace_figures(
     k: int,
     source: SourceModel,
     op: OperatingPoint,
-    solutions: Mapping[str, SheetSolution] | None = None,
+    solutions: Mapping[str, tuple[SheetSolution, int]] | None = None,
 ) -> list[TraceFigures]:
     lg = geo.layers[k]
     by_name = {x.layer.name: x for x in geo.layers}
-    # sheet currents of solved layers between the part and the trace
-    sheets_above = [
-        (name, sol)
-        for name, sol in (solutions or {}).items()
+    # sheet currents of solved layers between the part and the trace (a coupled solution
+    # holds several layers: only its sheets above the trace count)
+    above_names = [
+        name
+        for name in (solutions or {})
         if name in by_name and by_name[name].depth_mm < lg.depth_mm
     ]
+    grouped: dict[int, tuple[SheetSolution, list[int]]] = {}
+    for name in above_names:
+        sol, idx = (solutions or {})[name]
+        grouped.setdefault(id(sol), (sol, []))[1].append(idx)
+    sheet_sets = list(grouped.values())
+    sheets_above = above_names
     t_mm = float(lg.layer.thickness_mm)
     trace_z = -(lg.depth_mm + 0.5 * t_mm) * 1e-3
     out = []
@@ -583,15 +596,15 @@ def _trace_figures(
         for line in _lines(e.exposed):
             xy = source.to_local_m(line[:, 0], line[:, 1])
             m_h += trace_mutual_inductance_h(source, xy, trace_z, ret_z, image=image)
-            if sheets_above:
+            if sheet_sets:
                 trace = np.column_stack([xy, np.full(len(xy), trace_z)])
                 m_h += _sheet_path_mutual_h(
-                    [sol for _n, sol in sheets_above],
+                    sheet_sets,
                     trace_return_path(trace, ret_z),
                     ret_z if image else None,
                 )
         if sheets_above:
-            how += "; with the eddy currents of " + ", ".join(n for n, _s in sheets_above)
+            how += "; with the eddy currents of " + ", ".join(sheets_above)
         axis_gap_mm = float(e.exposed.distance(shapely.Point(source.x_mm, source.y_mm)))
         under_axis = source.axis == "vertical" and axis_gap_mm < 0.05 * source.winding_radius_mm
         m_abs = abs(m_h)
@@ -734,7 +747,7 @@ class SheetOutcome:
     layers: Mapping[str, Mapping[str, Metric]] = field(default_factory=dict)
     rings: tuple[RingFigures, ...] = ()
     notes: tuple[str, ...] = ()
-    solutions: Mapping[str, SheetSolution] = field(default_factory=dict)
+    solutions: Mapping[str, tuple[SheetSolution, int]] = field(default_factory=dict)
 
 
 def needs_sheet(lg: LayerGeometry) -> bool:
@@ -766,11 +779,14 @@ def sheet_layer_figures(
 
     Each such layer (:func:`needs_sheet`; not below solid planes that shield by
     :data:`SHEET_SHIELDED_DB` or more; at most :data:`SHEET_MAX_LAYERS`, nearest first;
-    meshes up to :data:`SHEET_MAX_NODES` nodes) is meshed on its
+    meshes up to :data:`SHEET_MAX_NODES` nodes each) is meshed on its
     plane copper within a square patch of :data:`SHEET_PATCH_DIAMETERS` winding
     diameters each side of the part centre (clipped to the window the copper was composed
-    for) and solved alone at the fundamental. Holes of the patch polygons are enclosed
-    voids (one ring-current unknown each); a void opened to the patch edge has none.
+    for). The layers are solved together, coupled in one system (each sheet's eddy
+    currents act on the others), at the fundamental; only when that system cannot be
+    built is each layer solved alone, with a note. Holes of the patch polygons are
+    enclosed voids (one ring-current unknown each); a void opened to the patch edge has
+    none.
 
     Parameters
     ----------
@@ -802,22 +818,33 @@ def sheet_layer_figures(
     layers: dict[str, dict[str, Metric]] = {}
     rings: list[RingFigures] = []
     notes: list[str] = []
-    solutions: dict[str, SheetSolution] = {}
+    solutions: dict[str, tuple[SheetSolution, int]] = {}
     if len(wanted) > SHEET_MAX_LAYERS:
         skipped = ", ".join(geo.layers[k].layer.name for k in wanted[SHEET_MAX_LAYERS:])
         notes.append(
             f"{geo.magnetic.ref}: layers {skipped} keep their solid-plane figures (the sheet "
             f"model runs on the {SHEET_MAX_LAYERS} nearest layers with voids or edges)"
         )
-    for k in wanted[:SHEET_MAX_LAYERS]:
-        out = _sheet_one_layer(geo, k, source, op)
-        if isinstance(out, str):
-            notes.append(out)
+    chosen = wanted[:SHEET_MAX_LAYERS]
+    groups: list[list[int]] = [chosen]
+    out = _sheet_layers(geo, chosen, source, op)
+    if isinstance(out, str) and len(chosen) > 1:
+        # the coupled system could not be built: each layer alone, as a fallback
+        notes.append(f"{out}; the layers are solved one at a time")
+        groups = [[k] for k in chosen]
+        outs = [_sheet_layers(geo, g, source, op) for g in groups]
+    else:
+        outs = [out]
+    for group, res in zip(groups, outs, strict=True):
+        if isinstance(res, str):
+            notes.append(res)
             continue
-        figs, layer_rings, sol = out
-        layers[geo.layers[k].layer.name] = figs
+        figs, layer_rings, sol = res
+        for sheet_index, k in enumerate(group):
+            name = geo.layers[k].layer.name
+            layers[name] = figs[name]
+            solutions[name] = (sol, sheet_index)
         rings.extend(layer_rings)
-        solutions[geo.layers[k].layer.name] = sol
     return SheetOutcome(layers=layers, rings=tuple(rings), notes=tuple(notes), solutions=solutions)
 
 
@@ -853,42 +880,55 @@ def _patch(
     return polys, holes_mm
 
 
-def _sheet_one_layer(
+def _sheet_layers(
     geo: MagneticGeometry,
-    k: int,
+    ks: Sequence[int],
     source: SourceModel,
     op: OperatingPoint,
-) -> tuple[dict[str, Metric], list[RingFigures], SheetSolution] | str:
-    """Solve one layer's copper; figures, ring records and the solution, or a note."""
-    lg = geo.layers[k]
-    name = lg.layer.name
+) -> tuple[dict[str, dict[str, Metric]], list[RingFigures], SheetSolution] | str:
+    """Solve the copper of layers ``ks`` in one coupled system.
+
+    Returns per layer name its figures, the ring records of every layer's voids and the
+    solution (sheet ``i`` of it is layer ``ks[i]``), or a note saying why not.
+    """
     ref = geo.magnetic.ref
-    polys, holes = _patch(geo, k, source, fill_below_mm2=_FILL_HOLES_MM2)
-    if not polys:
-        return f"{ref}: layer {name} has no plane copper around the part to mesh"
-    t_m = float(lg.layer.thickness_mm) * 1e-3
+    names = [geo.layers[k].layer.name for k in ks]
+    patches = []
+    for k in ks:
+        polys, holes = _patch(geo, k, source, fill_below_mm2=_FILL_HOLES_MM2)
+        if not polys:
+            name = geo.layers[k].layer.name
+            return f"{ref}: layer {name} has no plane copper around the part to mesh"
+        patches.append((polys, holes))
     freq = float(op.fsw_hz)
-    thick = t_m / float(skin_depth_m(freq, 1.0 / SIGMA_CU_S_PER_M)) > _THICK_RATIO
+    delta_m = float(skin_depth_m(freq, 1.0 / SIGMA_CU_S_PER_M))
+    thick = any(float(geo.layers[k].layer.thickness_mm) * 1e-3 / delta_m > _THICK_RATIO for k in ks)
+    what = "layer " + "+".join(names)
     try:
-        plane = PlaneSheet.from_polygons(
-            polys, z_m=-(lg.depth_mm * 1e-3 + 0.5 * t_m), thickness_m=t_m
-        )
+        planes = []
+        for k, (polys, _holes) in zip(ks, patches, strict=True):
+            t_m = float(geo.layers[k].layer.thickness_mm) * 1e-3
+            planes.append(
+                PlaneSheet.from_polygons(
+                    polys, z_m=-(geo.layers[k].depth_mm * 1e-3 + 0.5 * t_m), thickness_m=t_m
+                )
+            )
         loops = LoopSource.from_arrays(
             source.centre_m, source.axis_vec, source.radius_m, source.current_per_a
         )
         model = build_sheet_model(
-            [plane],
+            planes,
             loops,
             copper_model="impedance" if thick else "thin",
             h_max_m=SHEET_H_MAX_M,
-            max_nodes=SHEET_MAX_NODES,
+            max_nodes=SHEET_MAX_NODES * len(ks),
         )
         sol = model.solve(freq)
     except (FluxshadowError, ValueError, ArithmeticError, RuntimeError) as exc:
         # a copper shape the mesher or the solver cannot take is not fatal to the check
-        return f"{ref}: layer {name} keeps its solid-plane figures (sheet model: {exc})"
+        return f"{ref}: {what} keeps its solid-plane figures (sheet model: {exc})"
     i1 = float(op.harmonics_a[0]) if op.harmonics_a else 1.0
-    # far-field moment of the sheet currents: m_z = ½ Σ A (x J_y − y J_x)
+    # far-field moment of all sheet currents: m_z = ½ Σ A (x J_y − y J_x)
     cur = sol.triangle_current_a_per_m()[0]
     cen = model.tri_vertices_m.mean(axis=1)
     m_sheet = 0.5 * np.sum(model.tri_area_m2 * (cen[:, 0] * cur[:, 1] - cen[:, 1] * cur[:, 0]))
@@ -897,58 +937,77 @@ def _sheet_one_layer(
     m_tot[2] += m_sheet
     norm = float(np.linalg.norm(m_part))
     ratio = float(np.linalg.norm(m_tot)) / norm if norm > 0 else None
-    # shielding just below the copper, on the axis and at the winding radius
+    ring_i = np.asarray(sol.ring_current_a[0], dtype=np.complex128)
+    # ΔL = Re(Φᵀu) (per ampere squared): each unknown's term is its share, so a sheet's
+    # share is the sum over its unknowns and a ring's the term of its hole unknown
+    terms = np.real(model.source_phi * sol.unknowns[0])
+    unknown_sheet = np.asarray(model.unknown_sheet, dtype=np.int64)
+    hole_u = np.asarray(model.hole_unknown, dtype=np.int64)
+    ring_dl = terms[hole_u] if len(hole_u) else []
     rot = _rotation_to_axis(source)
     a = float(np.max(source.radius_m))
     off = rot @ np.array([a, 0.0])
-    z_b = -(lg.depth_mm * 1e-3 + t_m) - 1e-6
-    pts = np.array([[0.0, 0.0, z_b], [off[0], off[1], z_b]])
-    b_tot = sol.field_at(pts)[0]
-    b_free = loops_field_xyz(
-        pts, source.centre_m, source.axis_vec, source.radius_m, source.current_per_a
+    coupled = (
+        "+".join(sorted(names, key=lambda n: geo.layers[ks[names.index(n)]].layer.index))
+        if len(names) > 1
+        else ""
     )
-    with np.errstate(divide="ignore"):  # zero field below the copper: infinite SE
-        se = 20.0 * np.log10(np.linalg.norm(b_free, axis=1) / np.linalg.norm(b_tot, axis=1))
-    dl = float(sol.delta_l_h[0])
-    ring_i = np.asarray(sol.ring_current_a[0], dtype=np.complex128)
-    hole_u = np.asarray(model.hole_unknown, dtype=np.int64)
-    ring_dl = np.real(model.source_phi[hole_u] * sol.unknowns[0, hole_u]) if len(hole_u) else []
-    figs: dict[str, Metric] = {
-        "model": MODEL_SHEET,
-        "shielding_db": _round(float(np.min(se)), 2),
-        "sheet_delta_l_nh": _sig(dl * 1e9, 5),
-        "ring_current_a": _sig(float(np.max(np.abs(ring_i))) * i1) if len(ring_i) else 0.0,
-        "moment_ratio": _sig(ratio),
-        "mesh_nodes": int(model.n_nodes),
-    }
+    figs_by_layer: dict[str, dict[str, Metric]] = {}
     records: list[RingFigures] = []
-    for v in lg.voids:
-        p = v.polygon.representative_point()
-        hit = [
-            (float(shapely.intersection(h, v.polygon).area), j)
-            for j, h in enumerate(holes)
-            if h.intersects(v.polygon)
-        ]
-        closed = bool(hit)
-        if closed:
-            j = max(hit)[1]
-            i_ring = abs(complex(ring_i[j])) * i1
-            d_ring: float | None = float(ring_dl[j]) * 1e9
-        else:
-            i_ring, d_ring = 0.0, 0.0
-        records.append(
-            RingFigures(
-                layer=name,
-                x_mm=float(p.x),
-                y_mm=float(p.y),
-                closed=closed,
-                ring_current_a=i_ring,
-                moment_ratio=ratio,
-                delta_l_nh=dl * 1e9,
-                ring_delta_l_nh=d_ring,
-            )
+    for s_idx, (k, (_polys, holes)) in enumerate(zip(ks, patches, strict=True)):
+        lg = geo.layers[k]
+        name = lg.layer.name
+        t_m = float(lg.layer.thickness_mm) * 1e-3
+        # shielding just below this copper, on the axis and at the winding radius
+        z_b = -(lg.depth_mm * 1e-3 + t_m) - 1e-6
+        pts = np.array([[0.0, 0.0, z_b], [off[0], off[1], z_b]])
+        b_tot = sol.field_at(pts)[0]
+        b_free = loops_field_xyz(
+            pts, source.centre_m, source.axis_vec, source.radius_m, source.current_per_a
         )
-    return figs, records, sol
+        with np.errstate(divide="ignore"):  # zero field below the copper: infinite SE
+            se = 20.0 * np.log10(np.linalg.norm(b_free, axis=1) / np.linalg.norm(b_tot, axis=1))
+        mine = np.flatnonzero(np.asarray(model.hole_sheet) == s_idx)
+        ring_s = ring_i[mine]
+        dl = float(np.sum(terms[unknown_sheet == s_idx]))
+        figs: dict[str, Metric] = {
+            "model": MODEL_SHEET,
+            "shielding_db": _round(float(np.min(se)), 2),
+            "sheet_delta_l_nh": _sig(dl * 1e9, 5),
+            "ring_current_a": _sig(float(np.max(np.abs(ring_s))) * i1) if len(ring_s) else 0.0,
+            "moment_ratio": _sig(ratio),
+            "mesh_nodes": int(model.meshes[s_idx].n_nodes),
+        }
+        if coupled:
+            figs["sheet_coupled_layers"] = coupled
+        figs_by_layer[name] = figs
+        for v in lg.voids:
+            p = v.polygon.representative_point()
+            hit = [
+                (float(shapely.intersection(h, v.polygon).area), j)
+                for j, h in enumerate(holes)
+                if h.intersects(v.polygon)
+            ]
+            closed = bool(hit)
+            if closed:
+                j = int(mine[max(hit)[1]])
+                i_ring = abs(complex(ring_i[j])) * i1
+                d_ring: float | None = float(ring_dl[j]) * 1e9
+            else:
+                i_ring, d_ring = 0.0, 0.0
+            records.append(
+                RingFigures(
+                    layer=name,
+                    x_mm=float(p.x),
+                    y_mm=float(p.y),
+                    closed=closed,
+                    ring_current_a=i_ring,
+                    moment_ratio=ratio,
+                    delta_l_nh=dl * 1e9,
+                    ring_delta_l_nh=d_ring,
+                )
+            )
+    return figs_by_layer, records, sol
 
 
 _FILL_HOLES_MM2 = 1.0

@@ -1621,7 +1621,11 @@ class SheetSolution:
         return np.asarray(b, dtype=np.complex128)
 
     def vector_potential_at(
-        self, points_m: ArrayLike, *, include_source: bool = True
+        self,
+        points_m: ArrayLike,
+        *,
+        include_source: bool = True,
+        sheets: Sequence[int] | None = None,
     ) -> ComplexArray:
         """Vector potential at points, per frequency (no thick-copper attenuation).
 
@@ -1631,6 +1635,8 @@ class SheetSolution:
             Points (m).
         include_source : bool, default True
             Add the loops' own vector potential.
+        sheets : sequence of int, optional
+            Only the currents of these sheets (indices into ``model.sheets``); default all.
 
         Returns
         -------
@@ -1642,6 +1648,8 @@ class SheetSolution:
         a = np.zeros((n_f, len(p), 3), dtype=np.complex128)
         # A = μ0/(4π) Σ_T V_T J_T, J real and imaginary parts side by side: (T, 2F)
         j = self.triangle_current_a_per_m()
+        if sheets is not None:
+            j = j * np.isin(self.model.tri_sheet, np.asarray(sheets, dtype=np.int64))[None, :, None]
         jx = np.concatenate([j[..., 0].real, j[..., 0].imag]).T
         jy = np.concatenate([j[..., 1].real, j[..., 1].imag]).T
         step = self._point_block()
