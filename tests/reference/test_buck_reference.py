@@ -77,3 +77,32 @@ def test_harmonic_slope_peak_tends_to_the_gibbs_overshoot() -> None:
     assert harmonic_slope_peak_a_per_s(di, d, f, 2001, samples=65536) == pytest.approx(
         expected, rel=0.01
     )
+
+
+def test_harmonic_emf_through_a_first_order_coupling_matches_the_ode() -> None:
+    """A coupling that falls off as M(f) = M0 / (1 + j f/fc) (an eddy-current screen
+    with one time constant τ = 1/(2π fc)) filters the rectangular slope wave like a
+    first-order low-pass: τ y' + y = dI/dt, e = M0 y. Its periodic solution (elementary
+    ODE: exponential segments joined at the switching instants) peaks at a switching
+    instant; the harmonic sum with many harmonics must give the same peak."""
+    from fluxshadow.physics.buck import harmonic_emf_peak_v
+
+    d, di, f = 0.275, 1.0875, 1e6
+    m0, fc = 30e-12, 2.5e6
+    tau = 1.0 / (2 * np.pi * fc)
+    period = 1.0 / f
+    rise, fall = di / (d * period), -di / ((1 - d) * period)
+    a, b = np.exp(-d * period / tau), np.exp(-(1 - d) * period / tau)
+    # y1 = rise + (y0 - rise) a ; y0 = fall + (y1 - fall) b
+    y0 = (fall * (1 - b) + rise * (1 - a) * b) / (1 - a * b)
+    y1 = rise + (y0 - rise) * a
+    expected = m0 * max(abs(y0), abs(y1))
+    n = np.arange(1, 4001)
+    mutual = m0 / (1 + 1j * n * f / fc)
+    got = harmonic_emf_peak_v(di, d, f, mutual, samples=65536)
+    assert got == pytest.approx(expected, rel=0.005)
+    # with a constant coupling the EMF is M times the peak slope
+    from fluxshadow.physics.buck import harmonic_slope_peak_a_per_s
+
+    flat = harmonic_emf_peak_v(di, d, f, np.full(9, m0))
+    assert flat == pytest.approx(m0 * harmonic_slope_peak_a_per_s(di, d, f, 9), rel=1e-12)

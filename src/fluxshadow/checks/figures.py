@@ -72,6 +72,7 @@ from fluxshadow.checks.operating import PER_A_PER_US, OperatingPoint
 from fluxshadow.checks.settings import DEFAULT_SEVERITY, Settings
 from fluxshadow.checks.source import SourceModel
 from fluxshadow.errors import FluxshadowError
+from fluxshadow.physics.buck import harmonic_emf_peak_v
 from fluxshadow.physics.constants import MU0, SIGMA_CU_S_PER_M
 from fluxshadow.physics.loop import loops_field_xyz
 from fluxshadow.physics.sheet import LoopSource, PlaneSheet, SheetSolution, build_sheet_model
@@ -115,6 +116,7 @@ __all__ = [
 ]
 
 FloatArray = npt.NDArray[np.float64]
+ComplexArray = npt.NDArray[np.complex128]
 Metric = float | int | str | bool | None
 
 MODEL_SPECTRAL = "spectral (solid planes)"
@@ -514,14 +516,15 @@ def _sheet_path_mutual_h(
     sols: Sequence[tuple[SheetSolution, Sequence[int]]],
     path_m: FloatArray,
     image_z_m: float | None,
-) -> complex:
-    """∮ A·dl of sheet currents around a closed path, per ampere of winding current.
+) -> ComplexArray:
+    """∮ A·dl of sheet currents around a closed path, per ampere of winding current, at
+    each frequency of the solutions (all solved at the same frequencies).
 
     ``sols`` pairs each solution with the sheets of it whose currents count. With a
     perfectly conducting return plane at ``image_z_m`` the sheet currents' images add
     A_img(p) = -A(mirror of p) (horizontal currents: reversed images).
     """
-    total = 0j
+    total: ComplexArray = np.zeros(len(sols[0][0].freqs_hz) if sols else 1, dtype=np.complex128)
     for sol, sheets in sols:
         # A of the sheet varies on the scale of its distance to the path
         zs = np.asarray(sol.model.current_z_m)[np.asarray(sheets, dtype=np.int64)]
@@ -531,15 +534,15 @@ def _sheet_path_mutual_h(
         if len(pts) == 0:
             continue
         if image_z_m is None:
-            a = sol.vector_potential_at(pts, include_source=False, sheets=sheets)[0]
+            a = sol.vector_potential_at(pts, include_source=False, sheets=sheets)
         else:
             mirrored = pts.copy()
             mirrored[:, 2] = 2.0 * image_z_m - pts[:, 2]
             both = sol.vector_potential_at(
                 np.concatenate([pts, mirrored]), include_source=False, sheets=sheets
             )
-            a = both[0, : len(pts)] - both[0, len(pts) :]
-        total += complex(np.sum(a * dl))
+            a = both[:, : len(pts)] - both[:, len(pts) :]
+        total = total + np.einsum("fpc,pc->f", a, dl)
     return total
 
 
@@ -592,7 +595,9 @@ def _trace_figures(
             ret_z = -ret.depth_mm * 1e-3
         else:
             ret_z = -(ret.depth_mm + float(ret.layer.thickness_mm)) * 1e-3
-        m_h: complex = 0j
+        # per harmonic of the ripple: the direct coupling (frequency independent) plus
+        # that of the sheets' eddy currents at each harmonic
+        m_h: ComplexArray = np.zeros(max(1, len(op.harmonics_a)), dtype=np.complex128)
         for line in _lines(e.exposed):
             xy = source.to_local_m(line[:, 0], line[:, 1])
             m_h += trace_mutual_inductance_h(source, xy, trace_z, ret_z, image=image)
@@ -607,17 +612,19 @@ def _trace_figures(
             how += "; with the eddy currents of " + ", ".join(sheets_above)
         axis_gap_mm = float(e.exposed.distance(shapely.Point(source.x_mm, source.y_mm)))
         under_axis = source.axis == "vertical" and axis_gap_mm < 0.05 * source.winding_radius_mm
-        m_abs = abs(m_h)
+        m_abs = abs(complex(m_h[0]))
         if op.stated:
-            peak, on = op.slope_peak_a_per_s, op.slope_rise_a_per_s
+            on = op.slope_rise_a_per_s
+            emf = harmonic_emf_peak_v(op.ripple_a, op.duty, op.fsw_hz, m_h)
         else:
-            peak = on = PER_A_PER_US
+            on = PER_A_PER_US
+            emf = m_abs * PER_A_PER_US
         out.append(
             TraceFigures(
                 layer=lg.layer.name,
                 net=e.net,
                 mutual_inductance_ph=m_abs * 1e12,
-                induced_voltage_mv=m_abs * peak * 1e3,
+                induced_voltage_mv=emf * 1e3,
                 induced_on_mv=m_abs * abs(on) * 1e3,
                 return_path=how,
                 under_axis=under_axis,
@@ -923,7 +930,10 @@ def _sheet_layers(
             h_max_m=SHEET_H_MAX_M,
             max_nodes=SHEET_MAX_NODES * len(ks),
         )
-        sol = model.solve(freq)
+        # the fundamental first (every layer figure), then the ripple's other harmonics
+        # (the victims' induced voltage sees each harmonic through its own coupling)
+        n_harm = max(1, len(op.harmonics_a))
+        sol = model.solve(freq * np.arange(1, n_harm + 1))
     except (FluxshadowError, ValueError, ArithmeticError, RuntimeError) as exc:
         # a copper shape the mesher or the solver cannot take is not fatal to the check
         return f"{ref}: {what} keeps its solid-plane figures (sheet model: {exc})"

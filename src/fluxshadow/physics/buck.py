@@ -15,6 +15,7 @@ __all__ = [
     "buck_duty",
     "buck_ripple_a",
     "buck_slopes_a_per_s",
+    "harmonic_emf_peak_v",
     "harmonic_slope_peak_a_per_s",
     "triangle_harmonics_a",
 ]
@@ -174,6 +175,51 @@ def harmonic_slope_peak_a_per_s(
     Derived: Fourier series of the rectangular slope waveform (fluxshadow physics
     reference rows 18-19); with ``max_order = 1`` the result is ω I₁ exactly.
     """
+    return harmonic_emf_peak_v(ripple_a, duty, freq_hz, np.ones(max_order), samples=samples)
+
+
+def harmonic_emf_peak_v(
+    ripple_a: float,
+    duty: float,
+    freq_hz: float,
+    mutual_h: ArrayLike,
+    *,
+    samples: int = 4096,
+) -> float:
+    """Peak EMF the triangle ripple induces through a frequency-dependent mutual inductance.
+
+    e(t) = Σₙ Re(Mₙ Sₙ e^{jnωt}) over the harmonics n = 1 … len(mutual_h), with Sₙ the
+    phasor of harmonic n of the rectangular slope wave (see
+    :func:`harmonic_slope_peak_a_per_s`) and Mₙ the (complex) mutual inductance at n f:
+    a victim whose coupling is shielded by eddy currents sees each harmonic through its
+    own Mₙ, magnitude and phase.
+
+    Parameters
+    ----------
+    ripple_a : float
+        Peak-to-peak ripple ΔI (A).
+    duty : float
+        Rise fraction D, 0 < D < 1.
+    freq_hz : float
+        Switching frequency (Hz).
+    mutual_h : array_like of complex, shape (N,)
+        Mₙ (H) at n f for n = 1 … N.
+    samples : int
+        Samples over one period.
+
+    Returns
+    -------
+    float
+        Peak |e(t)| (V).
+
+    References
+    ----------
+    Derived: superposition of the harmonics of the slope (fluxshadow physics reference
+    rows 18-19); with all Mₙ = M it is M times the peak slope, with only M₁ non-zero
+    |M₁| ω I₁.
+    """
+    m = np.asarray(mutual_h, dtype=np.complex128).ravel()
+    max_order = len(m)
     period_s = 1.0 / freq_hz
     rise = ripple_a / (duty * period_s)
     fall = -ripple_a / ((1.0 - duty) * period_s)
@@ -189,5 +235,6 @@ def harmonic_slope_peak_a_per_s(
     n = np.arange(len(spectrum))
     cell = np.sinc(n / samples)
     spectrum[1:] = spectrum[1:] / cell[1:]
+    spectrum[1 : max_order + 1] *= m
     fine = np.fft.irfft(spectrum, n=samples * 8) * 8
     return float(np.max(np.abs(fine)))
