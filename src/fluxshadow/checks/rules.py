@@ -16,8 +16,8 @@ import shapely
 from shapely.geometry.base import BaseGeometry
 
 from fluxshadow.board.model import Board
-from fluxshadow.checks.analysis import MagneticGeometry
-from fluxshadow.checks.model import Finding, Severity
+from fluxshadow.checks.analysis import MagneticGeometry, Void
+from fluxshadow.checks.model import Finding, RingInfo, Severity
 from fluxshadow.checks.settings import Settings
 from fluxshadow.checks.switch_node import switch_node_capacitance
 
@@ -121,27 +121,44 @@ def plane_void(ctx: Context, geo: MagneticGeometry) -> list[Finding]:
     return out
 
 
+def _ring_key(ring: RingInfo) -> tuple[bool, str, float, float]:
+    """Voids whose traced rings agree are parts of one copper-free region (one hole of the
+    plane, or one opening), cut apart only by the zone's edge or by trace copper."""
+    return (
+        ring.closed,
+        ring.opened_to,
+        round(ring.inner_area_mm2, 3),
+        round(ring.inner_perimeter_mm, 3),
+    )
+
+
 def void_ring(ctx: Context, geo: MagneticGeometry) -> list[Finding]:
     """Copper closing a ring around a void in the zone, or a void opened to a plane edge."""
     out = []
     m = geo.magnetic
     for lg in geo.layers:
+        groups: dict[tuple[bool, str, float, float], list[Void]] = {}
         for v in lg.voids:
+            if v.ring is not None:
+                groups.setdefault(_ring_key(v.ring), []).append(v)
+        for members in groups.values():
+            v = max(members, key=lambda x: x.area_mm2)
             ring = v.ring
-            if ring is None:
-                continue
+            assert ring is not None
+            area = sum(x.area_mm2 for x in members)
+            parts = "" if len(members) == 1 else f" (in {len(members)} parts within the zone)"
             p = v.polygon.representative_point()
             if ring.closed:
                 msg = (
                     f"The copper of layer {lg.layer.name} closes a ring around a "
-                    f"{v.area_mm2:.1f} mm² void under {m.kind} {m.ref} (hole "
+                    f"{area:.1f} mm² void{parts} under {m.kind} {m.ref} (hole "
                     f"{ring.inner_area_mm2:.1f} mm², inner perimeter "
                     f"{ring.inner_perimeter_mm:.1f} mm): it carries eddy current around the void."
                 )
                 severity = None
             else:
                 msg = (
-                    f"The void of {v.area_mm2:.1f} mm² on layer {lg.layer.name} under {m.kind} "
+                    f"The void of {area:.1f} mm²{parts} on layer {lg.layer.name} under {m.kind} "
                     f"{m.ref} opens to the {ring.opened_to}: no ring current circulates around it."
                 )
                 severity = "note" if ctx.settings.severity.get("void-ring") != "off" else "off"
@@ -156,7 +173,8 @@ def void_ring(ctx: Context, geo: MagneticGeometry) -> list[Finding]:
                 {
                     "closed": ring.closed,
                     "opened_to": ring.opened_to,
-                    "void_area_mm2": _r(v.area_mm2),
+                    "void_area_mm2": _r(area),
+                    "void_parts": len(members),
                     "ring_inner_perimeter_mm": _r(ring.inner_perimeter_mm),
                     "ring_inner_area_mm2": _r(ring.inner_area_mm2),
                     "search_window_mm": _r(ring.search_window_mm),
