@@ -189,6 +189,52 @@ def test_field_maps_at_the_exposed_layers(demo: tuple[Board, Report, pd.PictureS
             assert fm.b_ut[iy, ix] > 3.0 * max(fm.b_ut[0, 0], fm.b_ut[-1, -1])
 
 
+def test_field_maps_carry_the_sheet_models_eddy_currents(
+    demo: tuple[Board, Report, pd.PictureSet],
+) -> None:
+    """Below layers solved with the sheet model (and no solid plane between) the map is
+    that solution's field, as in the report's figures: under L4 of the demo (a toroid over
+    a milled slot, rings closed around it on L2 and L3) the eddy currents of both rings
+    are in it, so over the ring copper beside the slot the field is well below the free
+    field of the winding (the spectral map with no solid plane), while in the slot it is
+    not pushed down as much."""
+    _board, _report, data = demo
+    pic = next(p for p in data.magnetics if p.ref == "L4")
+    fm = pic.fields[-1]
+    assert fm.sheets == "L2+L3"
+    assert fm.planes == ""
+    others = {f.sheets for p in data.magnetics if p.ref in ("L1",) for f in p.fields}
+    assert others == {""}  # solid planes above: spectral map
+    src = next(m for m in data.magnetics if m.ref == "L4")
+    free = pd.field_map(
+        _source_of(_board, "L4"),
+        np.zeros(0),
+        np.zeros(0),
+        fm.depth_mm * 1e-3,
+        fm.freq_hz,
+        fm.x_mm,
+        fm.y_mm,
+    )
+    scale = fm.b_ut / np.where(free > 0, free, np.inf)
+    iy = int(np.argmin(np.abs(fm.y_mm - src.y_mm)))
+    ix_slot = int(np.argmin(np.abs(fm.x_mm - src.x_mm)))
+    ix_copper = int(np.argmin(np.abs(fm.x_mm - (src.x_mm - 3.0))))
+    # the units cancel in this ratio of ratios (map at the operating point, free per A)
+    assert scale[iy, ix_copper] < 0.5 * scale[iy, ix_slot]
+
+
+def _source_of(board: Board, ref: str) -> SourceModel:
+    from fluxshadow.checks.operating import operating_points
+    from fluxshadow.checks.settings import Settings
+    from fluxshadow.checks.source import checked_part, source_model
+
+    m = board.magnetic(ref)
+    part = next((p for p in board.config.parts if p.ref == ref), None)
+    part, _problems = checked_part(m, part)
+    op = operating_points(board.magnetics, board.config)[ref]
+    return source_model(m, part, Settings(), inductance_h=op.inductance_h)
+
+
 def test_field_map_free_space_on_axis() -> None:
     # On-axis field of a circular loop, B = mu0 I a^2 / (2 (a^2 + z^2)^(3/2))
     # (textbook Biot-Savart result, from memory).

@@ -206,6 +206,9 @@ class MagneticFigures:
     rings : tuple of RingFigures
     notes : tuple of str
         What the models left out (for the report's notices).
+    sheet_solutions : mapping of str to (SheetSolution, int)
+        Per layer solved with the sheet model, its solution and the layer's sheet index
+        in it (for field maps).
     """
 
     ref: str
@@ -218,6 +221,9 @@ class MagneticFigures:
     traces: Mapping[tuple[str, str], TraceFigures] = field(default_factory=dict)
     rings: tuple[RingFigures, ...] = ()
     notes: tuple[str, ...] = ()
+    sheet_solutions: Mapping[str, tuple[SheetSolution, int]] = field(
+        default_factory=dict, repr=False, compare=False
+    )
 
 
 # ----------------------------------------------------------------------------- stacks
@@ -720,6 +726,7 @@ def magnetic_figures(
         traces=traces,
         rings=sheet_out.rings,
         notes=sheet_out.notes,
+        sheet_solutions=sheet_out.solutions,
     )
 
 
@@ -790,7 +797,8 @@ def sheet_layer_figures(
     plane copper within a square patch of :data:`SHEET_PATCH_DIAMETERS` winding
     diameters each side of the part centre (clipped to the window the copper was composed
     for). The layers are solved together, coupled in one system (each sheet's eddy
-    currents act on the others), at the fundamental; only when that system cannot be
+    currents act on the others), at the fundamental and its harmonics (the ripple's, for
+    the victims; every layer figure is the fundamental's); only when that system cannot be
     built is each layer solved alone, with a note. Holes of the patch polygons are
     enclosed voids (one ring-current unknown each); a void opened to the patch edge has
     none.

@@ -20,7 +20,7 @@ analyse_magnetic`, the same call the checks make) and joined with the report's f
 from __future__ import annotations
 
 import math
-from collections.abc import Sequence
+from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
 
 import numpy as np
@@ -36,12 +36,19 @@ from fluxshadow.checks.analysis import (
     analyse_magnetic,
     board_extent,
 )
-from fluxshadow.checks.figures import is_coaxial_vertical, layer_stack
+from fluxshadow.checks.figures import (
+    MODEL_SHEET,
+    SHEET_PATCH_DIAMETERS,
+    is_coaxial_vertical,
+    layer_stack,
+    sheet_layer_figures,
+)
 from fluxshadow.checks.model import Finding, Report
 from fluxshadow.checks.operating import OperatingPoint, operating_points
 from fluxshadow.checks.settings import Settings, settings_from_config
 from fluxshadow.checks.source import SourceModel, checked_part, source_model
 from fluxshadow.physics.loop import loops_field_xyz
+from fluxshadow.physics.sheet import SheetSolution
 from fluxshadow.physics.slab import coaxial_loops_field_below_layers
 from fluxshadow.physics.spectral import field_below_layers_from_top_bz
 
@@ -158,6 +165,11 @@ class FieldMap:
     exposed : bool
         The layer carries an exposed trace (else it is the deepest layer, mapped because
         nothing is exposed).
+    sheets : str
+        Layers above the map whose eddy currents are in it (the sheet model's solution,
+        as in the report's figures: source and sheet currents, no solid plane between),
+        e.g. ``"L2+L3"``; "" when the map is the spectral model of the solid planes. A
+        sheet-model map covers only the solved patch (its grid lines say where).
     """
 
     layer: str
@@ -169,6 +181,7 @@ class FieldMap:
     planes: str
     freq_hz: float
     exposed: bool = True
+    sheets: str = ""
 
 
 @dataclass(frozen=True, kw_only=True, eq=False)
@@ -420,7 +433,11 @@ def field_map(
 
 
 def _field_maps(
-    geo: MagneticGeometry, source: SourceModel, op: OperatingPoint, grid: int
+    geo: MagneticGeometry,
+    source: SourceModel,
+    op: OperatingPoint,
+    grid: int,
+    solutions: Mapping[str, tuple[SheetSolution, int]] | None = None,
 ) -> tuple[FieldMap, ...]:
     layers = geo.layers
     ks = [k for k in range(1, len(layers)) if layers[k].exposed]
@@ -441,18 +458,48 @@ def _field_maps(
         stack = layer_stack(layers, k - 1, planes=solid)
         mid_m = (lg.depth_mm + 0.5 * float(lg.layer.thickness_mm)) * 1e-3
         obs = max(mid_m - float(np.sum(stack.thickness_m)), 0.0)
-        b = field_map(source, stack.thickness_m, stack.sigma_s_per_m, obs, float(op.fsw_hz), xs, ys)
+        # Voided layers above solved with the sheet model, and no solid plane in between:
+        # the map is that solution's field (the part's and the eddy currents'), the model
+        # the report's figures of those layers come from.
+        above = [
+            name
+            for name in (solutions or {})
+            if any(x.layer.name == name and x.depth_mm < lg.depth_mm for x in layers)
+        ]
+        sols = {id((solutions or {})[n][0]): (solutions or {})[n][0] for n in above}
+        sheets = ""
+        map_x, map_y = xs, ys
+        if above and not stack.planes and len(sols) == 1:
+            sol = next(iter(sols.values()))
+            # over the solved patch only: beyond it the model has no copper
+            half = SHEET_PATCH_DIAMETERS * 2.0 * source.winding_radius_mm
+            map_x = np.linspace(max(x0, source.x_mm - half), min(x1, source.x_mm + half), grid)
+            map_y = np.linspace(max(y0, source.y_mm - half), min(y1, source.y_mm + half), grid)
+            xx, yy = np.meshgrid(map_x, map_y)
+            xy = source.to_local_m(xx.ravel(), yy.ravel())
+            pts = np.column_stack([xy, np.full(len(xy), -mid_m)])
+            b = np.linalg.norm(sol.field_at(pts)[0], axis=1).reshape(xx.shape)
+            sheets = "+".join(
+                sorted(
+                    above, key=lambda n: next(x.layer.index for x in layers if x.layer.name == n)
+                )
+            )
+        else:
+            b = field_map(
+                source, stack.thickness_m, stack.sigma_s_per_m, obs, float(op.fsw_hz), xs, ys
+            )
         out.append(
             FieldMap(
                 layer=lg.layer.name,
                 depth_mm=mid_m * 1e3,
-                x_mm=xs,
-                y_mm=ys,
+                x_mm=map_x,
+                y_mm=map_y,
                 b_ut=b * scale * 1e6,
                 per=per,
                 planes=",".join(stack.planes),
                 freq_hz=float(op.fsw_hz),
                 exposed=bool(lg.exposed),
+                sheets=sheets,
             )
         )
     return tuple(out)
@@ -469,6 +516,7 @@ def _magnetic_picture(
     op: OperatingPoint,
     figures: dict[str, float | None],
     grid: int,
+    solutions: Mapping[str, tuple[SheetSolution, int]] | None = None,
 ) -> MagneticPicture:
     m = geo.magnetic
     window = geo.window
@@ -517,7 +565,7 @@ def _magnetic_picture(
         winding_radius_mm=geo.winding_radius_mm,
         window=window,
         layers=tuple(layers),
-        fields=_field_maps(geo, source, op, grid),
+        fields=_field_maps(geo, source, op, grid, solutions),
         induced_per="mV peak" if op.stated else "mV per A/us",
     )
 
@@ -568,10 +616,19 @@ def picture_data(
         src = source_model(m, part, settings, inductance_h=op.inductance_h)
         mine = [f for f in report.findings if f.ref == m.ref and f.rule == "exposed-trace"]
         se: dict[str, float | None] = {}
+        sheet_layers: list[str] = []
         for lr in res.layers:
             v = lr.figures.get("shielding_db")
             se[lr.layer] = float(v) if isinstance(v, int | float) else None
-        pictures.append(_magnetic_picture(board, geo, mine, src, op, se, grid))
+            if lr.figures.get("model") == MODEL_SHEET:
+                sheet_layers.append(lr.layer)
+        sheet_out = sheet_layer_figures(
+            geo,
+            src,
+            op,
+            only=[k for k, lg in enumerate(geo.layers) if lg.layer.name in sheet_layers],
+        )
+        pictures.append(_magnetic_picture(board, geo, mine, src, op, se, grid, sheet_out.solutions))
     return PictureSet(magnetics=tuple(pictures), overview=_overview(report, board))
 
 

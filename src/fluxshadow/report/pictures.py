@@ -417,6 +417,8 @@ def field_figure(pic: MagneticPicture) -> Figure | None:
             _frame(ax, pic.window)
             _scale_bar(ax, pic.window, f"field-{fm.layer}")
             below = f"below solid planes {fm.planes}" if fm.planes else "no solid plane above"
+            if fm.sheets:
+                below += f"; eddy currents of {fm.sheets}"
             ax.set_title(f"{fm.layer} · {fm.depth_mm:.2f} mm deep\n{below}", loc="left")
         axes[0].set_ylabel("y (mm)")
         for ax in axes[1:]:
@@ -426,12 +428,17 @@ def field_figure(pic: MagneticPicture) -> Figure | None:
         cb.set_label(f"|B| (µT {pic.fields[0].per})")
         _log_ticks(cb.ax, norm)
         cb.ax.set_gid("colorbar:field")
+        model = (
+            "with the eddy currents of voided layers where noted"
+            if any(fm.sheets for fm in pic.fields)
+            else "spectral model, solid planes only"
+        )
         fig.suptitle(
             f"{pic.ref}: |B| of the winding at the exposed layers\n"
-            f"spectral model, solid planes only, {_freq_text(pic.fields[0].freq_hz)}"
+            f"{model}, {_freq_text(pic.fields[0].freq_hz)}"
             if any(fm.exposed for fm in pic.fields)
             else f"{pic.ref}: |B| of the winding at the deepest layer (nothing exposed)\n"
-            f"spectral model, solid planes only, {_freq_text(pic.fields[0].freq_hz)}",
+            f"{model}, {_freq_text(pic.fields[0].freq_hz)}",
             x=0.01, ha="left", fontsize=9.0, fontweight="bold",
         )  # fmt: skip
     return fig
