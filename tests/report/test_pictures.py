@@ -275,3 +275,39 @@ def test_unknown_format_is_a_config_error(
     board, report, _data = demo
     with pytest.raises(ConfigError, match="picture format must be one of svg, png; got 'pdf'"):
         render_pictures(report, board, tmp_path, formats=("pdf",))
+
+
+def test_ring_paths_come_from_the_traced_rings() -> None:
+    """A closed ring is drawn along the hole the analysis traced, also when that hole
+    reaches beyond the picture's window (the axes clip it); voids on one ring give one
+    path; an opened void gives none."""
+    from types import SimpleNamespace
+
+    import shapely
+
+    from fluxshadow.checks.analysis import Void
+    from fluxshadow.checks.model import RingInfo
+
+    hole = ((0.0, 0.0), (40.0, 0.0), (40.0, 3.0), (0.0, 3.0), (0.0, 0.0))  # 40 mm long
+    closed = RingInfo(
+        closed=True,
+        inner_perimeter_mm=86.0,
+        inner_area_mm2=120.0,
+        search_window_mm=48.0,
+        path_mm=hole,
+    )
+    opened = RingInfo(
+        closed=False,
+        inner_perimeter_mm=10.0,
+        inner_area_mm2=5.0,
+        search_window_mm=8.0,
+        opened_to="board edge",
+    )
+
+    def void(x: float, ring: RingInfo) -> Void:
+        return Void(polygon=shapely.box(x, 0, x + 1, 1), area_mm2=1.0, to_winding_mm=0.0, ring=ring)
+
+    lg = SimpleNamespace(voids=[void(1.0, closed), void(3.0, closed), void(50.0, opened)])
+    paths = pd._ring_paths(lg)  # type: ignore[arg-type]
+    assert len(paths) == 1
+    np.testing.assert_array_equal(paths[0], np.asarray(hole))

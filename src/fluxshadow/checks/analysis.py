@@ -223,6 +223,7 @@ def trace_void(
                 inner_perimeter_mm=float(region.exterior.length),
                 inner_area_mm2=float(hole.area),
                 search_window_mm=size,
+                path_mm=tuple((float(x), float(y)) for x, y, *_ in region.exterior.coords),
             )
         if 0.5 * size >= max_half_mm:
             return RingInfo(

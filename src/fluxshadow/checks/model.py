@@ -83,6 +83,9 @@ class RingInfo:
     inner_area_mm2: float
     search_window_mm: float
     opened_to: str = ""
+    path_mm: tuple[tuple[float, float], ...] = field(default=(), repr=False, compare=False)
+    """For a closed ring, the inner edge of its copper (the hole's outline, closed), where
+    the ring current flows; empty otherwise. For pictures; not in the JSON report."""
 
 
 @dataclass(frozen=True, kw_only=True)

@@ -310,29 +310,17 @@ def _lines_of(geom: BaseGeometry) -> tuple[FloatArray, ...]:
     return tuple(out)
 
 
-def _ring_paths(board: Board, geo: MagneticGeometry, lg: LayerGeometry) -> tuple[FloatArray, ...]:
-    """The holes of the closed rings of a layer, traced in the analysis window."""
-    closed = [v for v in lg.voids if v.ring is not None and v.ring.closed]
-    if not closed:
-        return ()
-    extent = board_extent(board)
-    if extent.geom_type == "Polygon":
-        extent = shapely.Polygon(extent.exterior)
-    box = shapely.box(*geo.window)
-    copper = shapely.union(lg.plane, lg.traces)
-    free = shapely.difference(shapely.intersection(box, extent), copper)
-    parts = [p for p in shapely.get_parts(free) if p.geom_type == "Polygon" and p.area > 0]
+def _ring_paths(lg: LayerGeometry) -> tuple[FloatArray, ...]:
+    """The inner edges of the closed rings of a layer, as traced by the analysis (a ring
+    that closes beyond the picture's window is drawn up to the window's frame)."""
     out: list[FloatArray] = []
-    used: set[int] = set()
-    for void in closed:
-        hits = [(i, p) for i, p in enumerate(parts) if p.intersects(void.polygon)]
-        if not hits:
+    seen: set[tuple[tuple[float, float], ...]] = set()
+    for v in lg.voids:
+        ring = v.ring
+        if ring is None or not ring.closed or len(ring.path_mm) < 4 or ring.path_mm in seen:
             continue
-        i, region = max(hits, key=lambda ip: float(ip[1].intersection(void.polygon).area))
-        if i in used or region.boundary.intersects(box.exterior):
-            continue  # closes beyond the window: the ring is not drawn
-        used.add(i)
-        out.append(np.asarray(region.exterior.coords, dtype=np.float64)[:, :2])
+        seen.add(ring.path_mm)
+        out.append(np.asarray(ring.path_mm, dtype=np.float64))
     return tuple(out)
 
 
@@ -549,7 +537,7 @@ def _magnetic_picture(
                 traces=polygons_of(lg.traces, window),
                 voids=polygons_of(voids, window) if voids is not None else (),
                 zone=polygons_of(lg.zone),
-                ring_paths=_ring_paths(board, geo, lg),
+                ring_paths=_ring_paths(lg),
                 exposed=tuple(exposed),
                 shielding_db=figures.get(name),
             )
