@@ -256,3 +256,20 @@ def test_stack_command_names_the_route(
     res = runner.invoke(app, ["stack", cam])
     assert "Input route: ODB++ job" in res.stdout
     assert "ODB++ matrix row 3 TL" in res.stdout
+
+
+def test_archive_notices_name_the_archive_not_the_temporary_folder(
+    realboard_odb: Callable[[str], Path], tmp_path: Path
+) -> None:
+    """An archive is unpacked into a temporary folder that is gone after loading: what the
+    board says about its files names the archive instead."""
+    arch = tmp_path / "job.tgz"
+    with tarfile.open(arch, "w:gz") as t:
+        t.add(realboard_odb(CAM) / "odb", arcname="odb")
+    board = load_package(arch)
+    assert board.notices
+    texts = [n.file + " " + n.message for n in board.notices] + list(board.assumptions)
+    assert any(str(arch) in t for t in texts)
+    assert not any("fluxshadow-" in t for t in texts)
+    assert board.outline is not None
+    assert board.outline.source == "odb/steps/edit/profile"  # relative, as layer sources

@@ -246,7 +246,7 @@ def load_package(
         limits = with_config_limits(limits, early)
     with open_package(path, limits=limits) as pkg:
         try:
-            return _load(pkg, config, progress, limits, route)
+            return _shown_paths(_load(pkg, config, progress, limits, route), pkg)
         except FluxshadowError as exc:
             if Path(pkg.root) == Path(pkg.display_root):
                 raise
@@ -255,6 +255,30 @@ def load_package(
             if isinstance(exc, ConfigError):
                 raise ConfigError(text) from exc
             raise InputError(text) from exc
+
+
+def _shown_paths(board: Board, pkg: PackageFiles) -> Board:
+    """The board with the temporary folder of an unpacked archive written as the archive
+    in its notices, assumptions and outline source (the folder is gone after loading)."""
+    tmp = str(Path(pkg.root))
+    if Path(pkg.root) == Path(pkg.display_root):
+        return board
+
+    def fix(text: str) -> str:
+        return text.replace(tmp, pkg.display_root)
+
+    notices = tuple(
+        Notice(file=fix(n.file), line=n.line, message=fix(n.message)) for n in board.notices
+    )
+    outline = board.outline
+    if outline is not None:
+        outline = replace(outline, source=fix(outline.source))
+    return replace(
+        board,
+        notices=notices,
+        assumptions=tuple(fix(a) for a in board.assumptions),
+        outline=outline,
+    )
 
 
 def with_config_limits(limits: Limits, cfg: Config) -> Limits:
@@ -492,6 +516,8 @@ def _gerber_inputs(pkg: PackageFiles, cfg: Config, say: Progress, limits: Limits
             rec = gerber(ident.file)
             notices.extend(rec.notices)
             outline = outline_from_artwork(rec)
+            if outline is not None:
+                outline = replace(outline, source=ident.file)  # relative, as layer sources
             uses[ident.file] = (
                 "gerber: board outline" if outline else "gerber: outline (no closed shape)"
             )
