@@ -645,7 +645,8 @@ def _odb_inputs(
     for f in sorted(job_root.rglob("*")):
         if f.is_file() and not f.is_symlink():
             key = f.relative_to(root).as_posix()
-            hashes.setdefault(key, _sha256(f))
+            if key not in hashes:
+                hashes[key] = _sha256(f)
             uses[key] = "odb++: not used"
     matrix_rel = rel(str(job_root / "matrix" / "matrix"))
     uses[matrix_rel] = f"odb++: matrix ({len(odb.matrix)} rows, step {odb.step})"
