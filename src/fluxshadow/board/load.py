@@ -394,14 +394,11 @@ def _load(
 
 
 def _other_files(pkg: PackageFiles, uses: dict[str, str]) -> None:
-    by_kind: dict[FileKind, list[str]] = {}
-    for rel, kind in sorted(pkg.files.items()):
-        by_kind.setdefault(kind, []).append(rel)
+    """Say of every file no step has used that it was not used."""
     for rel in pkg.unclassified:
         uses.setdefault(rel, "not classified (not read)")
-    for kind, rels in by_kind.items():
-        for rel in rels:
-            uses.setdefault(rel, f"{kind.value}: not used")
+    for rel, kind in pkg.files.items():
+        uses.setdefault(rel, f"{kind.value}: not used")
 
 
 def _read_table_files(

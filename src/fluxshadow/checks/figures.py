@@ -577,7 +577,6 @@ def _trace_figures(
         sol, idx = (solutions or {})[name]
         grouped.setdefault(id(sol), (sol, []))[1].append(idx)
     sheet_sets = list(grouped.values())
-    sheets_above = above_names
     t_mm = float(lg.layer.thickness_mm)
     trace_z = -(lg.depth_mm + 0.5 * t_mm) * 1e-3
     out = []
@@ -614,8 +613,8 @@ def _trace_figures(
                     trace_return_path(trace, ret_z),
                     ret_z if image else None,
                 )
-        if sheets_above:
-            how += "; with the eddy currents of " + ", ".join(sheets_above)
+        if above_names:
+            how += "; with the eddy currents of " + ", ".join(above_names)
         axis_gap_mm = float(e.exposed.distance(shapely.Point(source.x_mm, source.y_mm)))
         under_axis = source.axis == "vertical" and axis_gap_mm < 0.05 * source.winding_radius_mm
         m_abs = abs(complex(m_h[0]))
